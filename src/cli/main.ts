@@ -1,0 +1,38 @@
+#!/usr/bin/env node
+/**
+ * clipbench command line. Each command lives in its own file and registers itself here; this file
+ * only wires them up and turns user errors into one clear line and a non-zero exit.
+ */
+import { Command, CommanderError } from 'commander';
+import { UserError } from '../errors.js';
+import { registerCommands } from './commands.js';
+
+const program = new Command();
+program
+  .name('clipbench')
+  .description('Render dry DI takes through a model of a drive circuit, and measure it.')
+  .option('--debug', 'show stack traces for errors')
+  .showHelpAfterError('(run with --help for usage)')
+  .exitOverride();
+
+registerCommands(program);
+
+function reportFailure(error: unknown): never {
+  const debug = process.argv.includes('--debug');
+  if (error instanceof CommanderError) process.exit(error.exitCode);
+  if (error instanceof UserError) {
+    process.stderr.write(`clipbench: ${error.message}\n`);
+    if (debug && error.stack) process.stderr.write(`${error.stack}\n`);
+    process.exit(2);
+  }
+  const message = error instanceof Error ? error.message : String(error);
+  process.stderr.write(`clipbench: internal error: ${message} (run with --debug for details)\n`);
+  if (debug && error instanceof Error && error.stack) process.stderr.write(`${error.stack}\n`);
+  process.exit(70);
+}
+
+try {
+  await program.parseAsync(process.argv);
+} catch (error) {
+  reportFailure(error);
+}
