@@ -1,0 +1,41 @@
+/** Parsers for command-line option values; each failure names the flag, the value and what is expected. */
+import { UserError } from '../errors.js';
+import { OVERSAMPLE_FACTORS, type OversampleFactor } from '../circuit/chain.js';
+import type { CalibrationScale } from '../render/renderTake.js';
+import type { WavBits } from '../render/renderJob.js';
+
+export type { WavBits } from '../render/renderJob.js';
+
+/** Commander reducer for repeatable options such as `--set a=1 --set b=2`. */
+export function collect(value: string, previous: string[] = []): string[] {
+  return [...previous, value];
+}
+
+export function parseOversample(text: string): OversampleFactor {
+  const factor = Number(text);
+  const match = OVERSAMPLE_FACTORS.find((allowed) => allowed === factor);
+  if (match === undefined) throw new UserError(`--oversample: "${text}" is not one of ${OVERSAMPLE_FACTORS.join(', ')}`);
+  return match;
+}
+
+export function parseBits(text: string): WavBits {
+  if (text === '16' || text === '24' || text === '32f') return text;
+  throw new UserError(`--bits: "${text}" is not one of 16, 24, 32f`);
+}
+
+export function parsePositiveNumber(flag: string, text: string, unit: string): number {
+  const trimmed = text.trim().replace(new RegExp(`${unit}$`, 'i'), '');
+  const value = Number(trimmed);
+  if (trimmed === '' || !Number.isFinite(value) || value <= 0) {
+    throw new UserError(`${flag}: "${text}" is not a positive number (expected ${unit === 'V' ? 'volts' : unit}, e.g. 1 or 0.5)`);
+  }
+  return value;
+}
+
+export function parseCalibration(fullScale: string | undefined, inputPeak: string | undefined): CalibrationScale {
+  if (fullScale !== undefined && inputPeak !== undefined) {
+    throw new UserError('--full-scale and --input-peak cannot be used together (choose one calibration)');
+  }
+  if (inputPeak !== undefined) return { inputPeakVolts: parsePositiveNumber('--input-peak', inputPeak, 'V') };
+  return { fullScaleVolts: fullScale === undefined ? 1 : parsePositiveNumber('--full-scale', fullScale, 'V') };
+}

@@ -1,0 +1,34 @@
+/** A progress bar on stderr: redrawn in place on a terminal, a line per quarter otherwise. */
+export interface ProgressBar {
+  update(fraction: number): void;
+  finish(): void;
+}
+
+const WIDTH = 30;
+
+export function createProgressBar(label: string): ProgressBar {
+  const stream = process.stderr;
+  const interactive = stream.isTTY === true;
+  let lastShown = -1;
+  return {
+    update(fraction: number): void {
+      const clamped = Math.min(1, Math.max(0, fraction));
+      if (interactive) {
+        const percent = Math.floor(clamped * 100);
+        if (percent === lastShown) return;
+        lastShown = percent;
+        const filled = Math.round(clamped * WIDTH);
+        stream.write(`\r${label} [${'#'.repeat(filled)}${'-'.repeat(WIDTH - filled)}] ${percent}%`);
+        return;
+      }
+      const quarter = Math.floor(clamped * 4);
+      if (quarter > lastShown && quarter < 4) {
+        lastShown = quarter;
+        stream.write(`${label}: ${quarter * 25}%\n`);
+      }
+    },
+    finish(): void {
+      if (interactive && lastShown >= 0) stream.write('\n');
+    },
+  };
+}

@@ -1,0 +1,82 @@
+/** `clipbench render <design.json> <input.wav...> -o <dir>` */
+import { mkdir } from 'node:fs/promises';
+import type { Command } from 'commander';
+import { runRenderJobs } from '../render/workerPool.js';
+import type { RenderJob } from '../render/renderJob.js';
+import { formatTable } from '../report/table.js';
+import { collect, parseBits, parseCalibration, parseOversample } from './options.js';
+import { createProgressBar } from './progress.js';
+
+interface RenderFlags {
+  output: string;
+  set?: string[];
+  oversample: string;
+  fullScale?: string;
+  inputPeak?: string;
+  bits: string;
+  parts?: string;
+  threads?: string;
+}
+
+export function registerRenderCommand(program: Command): void {
+  program
+    .command('render')
+    .description('render dry DI takes through a design; writes one WAV and one JSON sidecar per take')
+    .argument('<design>', 'design file (JSON)')
+    .argument('<inputs...>', 'dry DI takes (WAV)')
+    .requiredOption('-o, --output <dir>', 'output folder (created if missing)')
+    .option('--set <key=value>', 'override a knob (drive=0.8) or a stage field (clip.diode=1n34a); repeatable', collect)
+    .option('--oversample <N>', 'oversampling of the nonlinear stages: 1, 2, 4, 8 or 16', '8')
+    .option('--full-scale <V>', 'volts peak at 0 dBFS, in and out (default 1)')
+    .option('--input-peak <V>', 'instead: scale each take so its peak is V volts')
+    .option('--bits <bits>', 'output WAV: 16, 24 or 32f (float)', '24')
+    .option('--parts <file>', 'extra parts library (JSON)')
+    .option('--threads <N>', 'worker threads (default: one per core)')
+    .action(async (designPath: string, inputs: string[], flags: RenderFlags) => {
+      const scale = parseCalibration(flags.fullScale, flags.inputPeak);
+      const jobs: RenderJob[] = inputs.map((inputPath) => ({
+        designPath,
+        partsPath: flags.parts,
+        overrides: flags.set ?? [],
+        inputPath,
+        outputDir: flags.output,
+        oversample: parseOversample(flags.oversample),
+        scale,
+        bits: parseBits(flags.bits),
+      }));
+      await mkdir(flags.output, { recursive: true });
+      const bar = createProgressBar('rendering');
+      const threads = flags.threads === undefined ? undefined : Math.max(1, Math.floor(Number(flags.threads)) || 1);
+      const outcomes = await runRenderJobs(jobs, { threads, onProgress: (f) => bar.update(f) });
+      bar.finish();
+
+      const rows: string[][] = [];
+      const problems: string[] = [];
+      outcomes.forEach((outcome, index) => {
+        if (!outcome.ok) {
+          problems.push(`${inputs[index]}: ${outcome.message}`);
+          return;
+        }
+        const s = outcome.result.summary;
+        const conducting = Object.values(s.conducting);
+        rows.push([
+          outcome.result.wavPath,
+          s.input.peakVolts.toFixed(3),
+          s.output.peakVolts.toFixed(3),
+          s.output.peakDbfs.toFixed(1),
+          s.output.crestDb.toFixed(1),
+          conducting.length > 0 ? `${(Math.max(...conducting) * 100).toFixed(1)} %` : '-',
+          String(s.overs.count),
+        ]);
+        for (const warning of s.warnings) problems.push(`warning: ${outcome.result.wavPath}: ${warning}`);
+      });
+      if (rows.length > 0) {
+        process.stdout.write(
+          formatTable(['output', 'in peak V', 'out peak V', 'out peak dBFS', 'crest dB', 'diodes on', 'overs'], rows),
+        );
+        process.stdout.write('Caution: rendered drive can be loud. Start playback at a low volume.\n');
+      }
+      for (const line of problems) process.stderr.write(`clipbench: ${line}\n`);
+      if (outcomes.some((outcome) => !outcome.ok)) process.exitCode = 2;
+    });
+}

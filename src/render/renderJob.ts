@@ -1,0 +1,74 @@
+/**
+ * One render job: a design file (plus overrides) and one take, rendered to a WAV and a JSON sidecar
+ * in the output folder. A job is plain data so it can run in a worker thread.
+ */
+import path from 'node:path';
+import { readWavFile } from '../audio/wavRead.js';
+import { fromVolts } from '../audio/calibration.js';
+import { writeWavFile } from '../audio/wavWrite.js';
+import { assertNotAnInput, writeFileAtomic } from '../audio/atomicWrite.js';
+import { loadPartsLibrary } from '../design/parts.js';
+import { readDesignFile } from '../design/parseDesign.js';
+import { resolveDesign } from '../design/resolve.js';
+import type { OversampleFactor } from '../circuit/chain.js';
+import type { RenderProgress } from '../circuit/renderChannel.js';
+import { renderTake, type CalibrationScale, type RenderSummary } from './renderTake.js';
+
+export type WavBits = '16' | '24' | '32f';
+
+export interface RenderJob {
+  designPath: string;
+  partsPath?: string;
+  overrides: string[];
+  inputPath: string;
+  outputDir: string;
+  /** File name stem of the outputs; defaults to "<take>--<design>". */
+  outputStem?: string;
+  oversample: OversampleFactor;
+  scale: CalibrationScale;
+  bits: WavBits;
+}
+
+export interface RenderJobResult {
+  wavPath: string;
+  sidecarPath: string;
+  summary: RenderSummary;
+}
+
+/** Keep letters, digits, dot, dash and underscore; never a path separator or "..". */
+export function sanitizeFileStem(text: string): string {
+  const cleaned = text
+    .replace(/[^A-Za-z0-9._-]+/g, '_')
+    .replace(/\.{2,}/g, '.')
+    .replace(/^[._]+/, '')
+    .slice(0, 120);
+  return cleaned === '' ? 'render' : cleaned;
+}
+
+export function defaultOutputStem(inputPath: string, designName: string): string {
+  const take = path.basename(inputPath, path.extname(inputPath));
+  return sanitizeFileStem(`${take}--${designName}`);
+}
+
+export async function runRenderJob(job: RenderJob, onProgress?: RenderProgress): Promise<RenderJobResult> {
+  const parts = loadPartsLibrary(job.partsPath);
+  const design = resolveDesign(await readDesignFile(job.designPath, parts, job.overrides));
+  const wav = await readWavFile(job.inputPath);
+  const stem = job.outputStem ?? defaultOutputStem(job.inputPath, design.name);
+  const wavPath = path.join(job.outputDir, `${stem}.wav`);
+  const sidecarPath = path.join(job.outputDir, `${stem}.json`);
+  const inputs = [job.inputPath, job.designPath, ...(job.partsPath ? [job.partsPath] : [])];
+  assertNotAnInput(wavPath, inputs);
+  assertNotAnInput(sidecarPath, inputs);
+
+  const rendered = renderTake(design, wav, { oversample: job.oversample, scale: job.scale, onProgress });
+  const fileChannels = fromVolts(rendered.volts, rendered.summary.voltsAtFullScale);
+  await writeWavFile(wavPath, fileChannels, wav.sampleRate, job.bits);
+  const sidecar = {
+    ...rendered.summary,
+    output: { ...rendered.summary.output, file: path.basename(wavPath), bits: job.bits },
+    overrides: job.overrides,
+  };
+  await writeFileAtomic(sidecarPath, `${JSON.stringify(sidecar, null, 2)}\n`);
+  return { wavPath, sidecarPath, summary: rendered.summary };
+}
