@@ -1,0 +1,79 @@
+/**
+ * Safe output files: a file appears under its final name only when complete, and an output never
+ * replaces one of the inputs.
+ */
+import { realpathSync, statSync } from 'node:fs';
+import { open, rename, rm } from 'node:fs/promises';
+import { basename, dirname, join, resolve } from 'node:path';
+import { UserError } from '../errors.js';
+
+let temporaryCounter = 0;
+
+/**
+ * Writes `data` to a temporary name in the target's folder (`.name.<pid>.<n>.tmp`), flushes it and
+ * renames it over `path` (rename within one folder is atomic on POSIX file systems). On any failure
+ * the temporary file is removed and nothing is left under the final name that was not there before.
+ */
+export async function writeFileAtomic(path: string, data: string | Uint8Array): Promise<void> {
+  temporaryCounter += 1;
+  const temporaryPath = join(dirname(path), `.${basename(path)}.${process.pid}.${temporaryCounter}.tmp`);
+  try {
+    const handle = await open(temporaryPath, 'wx');
+    try {
+      await handle.writeFile(data);
+      await handle.sync();
+    } finally {
+      await handle.close();
+    }
+    await rename(temporaryPath, path);
+  } catch (error) {
+    await rm(temporaryPath, { force: true });
+    throw describeWriteError(error, path);
+  }
+}
+
+function describeWriteError(error: unknown, path: string): unknown {
+  const code = (error as NodeJS.ErrnoException).code;
+  if (code === 'ENOENT') return new UserError(`${path}: cannot write, the folder ${dirname(path)} does not exist`);
+  if (code === 'EACCES' || code === 'EPERM' || code === 'EROFS') return new UserError(`${path}: cannot write, permission denied`);
+  if (code === 'EISDIR') return new UserError(`${path}: cannot write, a folder has that name`);
+  if (code === 'ENOSPC') return new UserError(`${path}: cannot write, the disk is full`);
+  return error;
+}
+
+/** The real path of a file, or of its folder plus its name when the file does not exist yet. */
+function canonicalPath(path: string): string {
+  const absolute = resolve(path);
+  try {
+    return realpathSync(absolute);
+  } catch {
+    try {
+      return join(realpathSync(dirname(absolute)), basename(absolute));
+    } catch {
+      return absolute;
+    }
+  }
+}
+
+/** Same file by device and inode (catches hard links and case-insensitive file systems), when both exist. */
+function sameExistingFile(first: string, second: string): boolean {
+  try {
+    const a = statSync(first);
+    const b = statSync(second);
+    return a.dev === b.dev && a.ino === b.ino;
+  } catch {
+    return false;
+  }
+}
+
+/** Throws a UserError when `outputPath` names the same file as any of `inputPaths` (after resolving links). */
+export function assertNotAnInput(outputPath: string, inputPaths: string[]): void {
+  const output = canonicalPath(outputPath);
+  for (const inputPath of inputPaths) {
+    if (canonicalPath(inputPath) === output || sameExistingFile(outputPath, inputPath)) {
+      throw new UserError(
+        `${outputPath}: refusing to overwrite the input file ${inputPath}; choose another output folder or name`,
+      );
+    }
+  }
+}

@@ -1,0 +1,84 @@
+/**
+ * The only place where digital full scale meets volts (BRIEF section 1): a take is read either at a
+ * fixed `fullScaleVolts` (volts peak at 0 dBFS) or scaled so its peak is `inputPeakVolts`; a render is
+ * written back with the same volts-per-full-scale, so a unity design returns its input.
+ */
+import { UserError } from '../errors.js';
+
+export type CalibrationScale = { fullScaleVolts: number } | { inputPeakVolts: number };
+
+export interface CalibratedTake {
+  /** One array per channel, in volts. */
+  channels: Float64Array[];
+  /** Volts that digital full scale (1.0) stands for. */
+  voltsPerFullScale: number;
+  /** Peak of the calibrated take, volts. */
+  inputPeakVolts: number;
+}
+
+/** Largest |sample| over all channels. */
+export function peakOf(channels: ReadonlyArray<Float32Array | Float64Array>): number {
+  let peak = 0;
+  for (const samples of channels) {
+    for (let i = 0; i < samples.length; i++) {
+      const magnitude = Math.abs(samples[i]);
+      if (magnitude > peak) peak = magnitude;
+    }
+  }
+  return peak;
+}
+
+/** Root mean square over all samples of all channels (0 for no samples). */
+export function rmsOf(channels: ReadonlyArray<Float32Array | Float64Array>): number {
+  let sumOfSquares = 0;
+  let count = 0;
+  for (const samples of channels) {
+    for (let i = 0; i < samples.length; i++) sumOfSquares += samples[i] * samples[i];
+    count += samples.length;
+  }
+  return count === 0 ? 0 : Math.sqrt(sumOfSquares / count);
+}
+
+/** 20 log10(value) for a value relative to full scale; -Infinity for 0 (format it before JSON, which has no -Infinity). */
+export function toDbfs(value: number): number {
+  return 20 * Math.log10(Math.abs(value));
+}
+
+function requirePositiveVolts(volts: number, what: string): void {
+  if (!Number.isFinite(volts) || volts <= 0) throw new UserError(`${what} must be a positive number of volts (got ${volts})`);
+}
+
+/**
+ * Converts digital samples to volts. `sourceName` (e.g. the file path) names the take in errors.
+ * Input-peak mode refuses a silent take, which has no peak to scale.
+ */
+export function toVolts(channels: Float32Array[], scale: CalibrationScale, sourceName = 'take'): CalibratedTake {
+  const digitalPeak = peakOf(channels);
+  let voltsPerFullScale: number;
+  if ('fullScaleVolts' in scale) {
+    requirePositiveVolts(scale.fullScaleVolts, 'full-scale voltage');
+    voltsPerFullScale = scale.fullScaleVolts;
+  } else {
+    requirePositiveVolts(scale.inputPeakVolts, 'input peak');
+    if (digitalPeak === 0) {
+      throw new UserError(`${sourceName}: take is silent (all samples 0), cannot scale it to an input peak of ${scale.inputPeakVolts} V`);
+    }
+    voltsPerFullScale = scale.inputPeakVolts / digitalPeak;
+  }
+  const volts = channels.map((samples) => {
+    const out = new Float64Array(samples.length);
+    for (let i = 0; i < samples.length; i++) out[i] = samples[i] * voltsPerFullScale;
+    return out;
+  });
+  return { channels: volts, voltsPerFullScale, inputPeakVolts: digitalPeak * voltsPerFullScale };
+}
+
+/** Converts volts back to digital full scale with the scale the take was read at. */
+export function fromVolts(channels: Float64Array[], voltsPerFullScale: number): Float64Array[] {
+  requirePositiveVolts(voltsPerFullScale, 'volts per full scale');
+  return channels.map((volts) => {
+    const out = new Float64Array(volts.length);
+    for (let i = 0; i < volts.length; i++) out[i] = volts[i] / voltsPerFullScale;
+    return out;
+  });
+}
