@@ -1,0 +1,38 @@
+import { describe, expect, it } from 'vitest';
+import { createToneStage, designToneStage, toneStageSmallSignal } from '../../src/circuit/tone.js';
+import { analogResponse, digitalResponse, magnitudeDb } from '../../src/dsp/bilinear.js';
+import type { CircuitContext, ToneStage } from '../../src/design/types.js';
+import { UserError } from '../../src/errors.js';
+import { expectClose } from '../helpers/expectClose.js';
+import { sineGainDb } from '../helpers/sineFit.js';
+
+const HALF_POWER_DB = 20 * Math.log10(Math.SQRT1_2); // textbook first-order RC: |H| = 1/sqrt(2) at the corner
+
+describe('tone stage', () => {
+  // 1k fixed + 20k pot at full, 22n: corner 1 / (2 pi 21k 22n) = 344.5 Hz.
+  const spec: ToneStage<number> = { id: 'tone', type: 'tone', r: 21e3, cap: 22e-9 };
+  const cornerHz = 1 / (2 * Math.PI * spec.r * spec.cap);
+
+  for (const sampleRate of [44100, 96000]) {
+    it(`low-pass corner is -3.01 dB at 1/(2 pi R C) at ${sampleRate} Hz`, () => {
+      const ctx: CircuitContext = { sampleRate, supplyVolts: 9, temperatureC: 25 };
+      const design = designToneStage(spec, ctx);
+      expectClose(magnitudeDb(digitalResponse(design, cornerHz)), HALF_POWER_DB, { atol: 1e-9 });
+      expectClose(magnitudeDb(digitalResponse(design, 0)), 0, { atol: 1e-12 });
+      const stage = createToneStage(design);
+      expectClose(sineGainDb((b) => stage.process(b), cornerHz, sampleRate), HALF_POWER_DB, { atol: 0.01 });
+    });
+  }
+
+  it('analog H(s) is 1 / (1 + jwRC): -20 dB/decade well above the corner (textbook)', () => {
+    const tf = toneStageSmallSignal(spec);
+    const hz = 100 * cornerHz;
+    expectClose(magnitudeDb(analogResponse(tf, hz)), -10 * Math.log10(1 + 100 * 100), { atol: 1e-9 });
+  });
+
+  it('rejects a corner above half the sample rate', () => {
+    const ctx: CircuitContext = { sampleRate: 44100, supplyVolts: 9, temperatureC: 25 };
+    expect(() => designToneStage({ ...spec, r: 100, cap: 1e-9 }, ctx)).toThrow(UserError);
+    expect(() => designToneStage({ ...spec, r: 100, cap: 1e-9 }, ctx)).toThrow(/22050 Hz/);
+  });
+});
