@@ -1,0 +1,154 @@
+/**
+ * The design-file vocabulary in one place: every stage type and field the parser accepts, with its
+ * kind and meaning. The parser checks field names against these tables and the JSON Schema in
+ * `shared/design.schema.json` is generated from them (see `designSchema.ts`), so the two cannot drift.
+ */
+import type { StageType } from './types.js';
+
+export type FieldKind =
+  | 'id'
+  | 'stageType'
+  | 'name'
+  | 'resistance' // value > 0 or a pot object
+  | 'resistanceOrZero' // value >= 0 or a pot object
+  | 'ohms' // plain value > 0 (never a pot)
+  | 'ohmsOrZero'
+  | 'capacitance'
+  | 'volts'
+  | 'voltsOrZero'
+  | 'voltsOrInf'
+  | 'amperes'
+  | 'hertzOrInf'
+  | 'voltsPerSecondOrInf'
+  | 'dimensionless'
+  | 'temperature'
+  | 'count'
+  | 'knobName'
+  | 'knobPositions'
+  | 'taper'
+  | 'boolean'
+  | 'diode' // part name or inline diode object
+  | 'opamp' // part name
+  | 'stages'
+  | 'parts'
+  | 'text';
+
+export interface FieldSpec {
+  kind: FieldKind;
+  required: boolean;
+  description: string;
+}
+
+type FieldTable = Readonly<Record<string, FieldSpec>>;
+
+const required = (kind: FieldKind, description: string): FieldSpec => ({ kind, required: true, description });
+const optional = (kind: FieldKind, description: string): FieldSpec => ({ kind, required: false, description });
+
+const STAGE_HEAD: FieldTable = {
+  id: required('id', 'Unique stage name (letters, digits, - and _), used by --set stageId.field=value'),
+  type: required('stageType', 'Stage type'),
+};
+
+export const STAGE_FIELDS: Readonly<Record<StageType, FieldTable>> = {
+  input: {
+    ...STAGE_HEAD,
+    series: optional('resistanceOrZero', 'Series resistor from the jack, ohms (default 0)'),
+    coupling: required('capacitance', 'Coupling capacitor, farads'),
+    pulldown: required('resistance', 'Pull-down resistor to the bias point after the coupling capacitor, ohms'),
+  },
+  gain: {
+    ...STAGE_HEAD,
+    opamp: required('opamp', 'Op-amp part name'),
+    rf: optional('resistanceOrZero', 'Feedback resistor, ohms (0 or omitted with no rg: unity buffer)'),
+    rg: optional('resistance', 'Resistor from the inverting input to the bias point, ohms'),
+    cg: optional('capacitance', 'Capacitor in series with rg, farads'),
+    cf: optional('capacitance', 'Capacitor across rf, farads'),
+    feedbackDiode: optional('diode', 'Diode part (or inline diode) across rf: clipping inside the feedback loop'),
+    feedbackUp: optional('count', 'Feedback diodes in series conducting for positive output (default 1 with feedbackDiode)'),
+    feedbackDown: optional('count', 'Feedback diodes in series conducting for negative output (default 1 with feedbackDiode)'),
+  },
+  clipper: {
+    ...STAGE_HEAD,
+    series: required('resistance', 'Series resistor into the diodes, ohms'),
+    cap: optional('capacitance', 'Capacitor across the diodes, farads (omitted: memoryless clipper)'),
+    diode: required('diode', 'Diode part name or inline diode'),
+    downDiode: optional('diode', 'Diode for the negative side (default: same as diode)'),
+    up: optional('count', 'Diodes in series conducting for positive voltage (default 1, 0 = none)'),
+    down: optional('count', 'Diodes in series conducting for negative voltage (default 1, 0 = none)'),
+  },
+  tone: {
+    ...STAGE_HEAD,
+    fixed: optional('ohmsOrZero', 'Fixed resistor in series with the tone pot, ohms (default 0)'),
+    pot: required('ohms', 'Tone pot value, ohms'),
+    knob: required('knobName', 'Knob that turns the tone pot'),
+    taper: optional('taper', 'Tone pot taper (default linear)'),
+    reverse: optional('boolean', 'Pot wired backwards (default false)'),
+    cap: required('capacitance', 'Capacitor to the bias point, farads'),
+  },
+  lowpass: {
+    ...STAGE_HEAD,
+    r: required('resistance', 'Series resistor, ohms'),
+    c: required('capacitance', 'Capacitor to the bias point, farads'),
+  },
+  highpass: {
+    ...STAGE_HEAD,
+    r: required('resistance', 'Resistor to the bias point, ohms'),
+    c: required('capacitance', 'Series capacitor, farads'),
+  },
+  volume: {
+    ...STAGE_HEAD,
+    pot: required('ohms', 'Volume pot value, ohms'),
+    knob: required('knobName', 'Knob that turns the volume pot'),
+    taper: optional('taper', 'Volume pot taper (default audio)'),
+    reverse: optional('boolean', 'Pot wired backwards (default false)'),
+  },
+};
+
+export const STAGE_TYPES = Object.keys(STAGE_FIELDS) as StageType[];
+
+/** A resistor field given as a potentiometer. */
+export const POT_FIELDS: FieldTable = {
+  fixed: optional('ohmsOrZero', 'Fixed resistance in series with the pot, ohms (default 0)'),
+  pot: required('ohms', 'Pot value (end to end), ohms'),
+  knob: required('knobName', 'Knob that turns this pot'),
+  taper: optional('taper', 'Pot taper (default linear)'),
+  reverse: optional('boolean', 'Pot wired backwards: position p acts as 1 - p (default false)'),
+};
+
+export const DESIGN_FIELDS: FieldTable = {
+  $schema: optional('text', 'Optional reference to the JSON Schema'),
+  $comment: optional('text', 'Free text, ignored'),
+  name: optional('name', 'Design name (default: the file name)'),
+  supply: required('volts', 'Single supply voltage, volts (the signal is biased at half of it)'),
+  temperature: optional('temperature', 'Temperature in degrees C for the diode thermal voltage (default 25)'),
+  knobs: optional('knobPositions', 'Knob positions 0..1 (0 = fully counter-clockwise); unlisted knobs sit at 0.5'),
+  parts: optional('parts', 'Extra diode and op-amp parts, in the parts-file format'),
+  stages: required('stages', 'Stages in signal order'),
+};
+
+/** An inline diode (in a design) or a diode entry in a parts file. */
+export const DIODE_FIELDS: FieldTable = {
+  saturationCurrent: required('amperes', 'Shockley saturation current Is, amperes'),
+  ideality: required('dimensionless', 'Ideality factor n'),
+  seriesResistance: required('ohmsOrZero', 'Ohmic series resistance Rs, ohms'),
+  ratedCurrent: optional('amperes', 'Continuous forward current rating, amperes (used by check)'),
+  source: optional('text', 'Where the numbers come from'),
+};
+
+export const OPAMP_FIELDS: FieldTable = {
+  gbwHz: required('hertzOrInf', 'Gain-bandwidth product, hertz ("inf" = unlimited)'),
+  slewRateVoltsPerSecond: required('voltsPerSecondOrInf', 'Slew rate, volts per second ("inf" = unlimited)'),
+  headroomLowVolts: required('voltsOrZero', 'Output swing limit above the negative rail, volts'),
+  headroomHighVolts: required('voltsOrZero', 'Output swing limit below the positive rail, volts'),
+  supplyMinVolts: required('voltsOrZero', 'Lowest rated total supply, volts'),
+  supplyMaxVolts: required('voltsOrInf', 'Highest rated total supply, volts ("inf" = any)'),
+  source: optional('text', 'Where the numbers come from'),
+};
+
+export const PARTS_FILE_FIELDS: FieldTable = {
+  $comment: optional('text', 'Free text, ignored'),
+  diodes: optional('parts', 'Diodes by part name'),
+  opamps: optional('parts', 'Op-amps by part name'),
+};
+
+export const fieldNames = (table: FieldTable): string[] => Object.keys(table);

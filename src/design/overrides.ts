@@ -1,0 +1,109 @@
+/**
+ * Command-line overrides (`render --set`, `compare --vary`) applied to the raw design JSON before
+ * validation, so an override is checked exactly like the file and its errors name the option:
+ *   knob=value            e.g. drive=0.8          sets knobs.drive
+ *   supply=V, temperature=C, name=text             set the top-level fields
+ *   stageId.field=value   e.g. clip.diode=1n34a    sets a stage field
+ *   stageId.field.sub=v   e.g. amp.rf.fixed=4k7    sets a field inside a pot object
+ */
+import { UserError } from '../errors.js';
+import { childPath } from './locator.js';
+import { isRawObject, type RawObject } from './rawReaders.js';
+import { suggestionText } from './suggest.js';
+
+const TOP_LEVEL_SETTINGS = ['supply', 'temperature', 'name'];
+const NUMBER_PATTERN = /^[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?$/;
+
+export interface TrackedOverrides {
+  raw: unknown;
+  /** JSON path -> the option that set it, e.g. `stages[2].diode` -> `--set clip.diode` */
+  overriddenPaths: Map<string, string>;
+}
+
+/** Command-line text to a JSON value: numbers (counts, knob positions) and booleans are converted. */
+function toJsonValue(text: string): unknown {
+  if (NUMBER_PATTERN.test(text)) return Number(text);
+  if (text === 'true' || text === 'false') return text === 'true';
+  return text;
+}
+
+/** Every knob name a pot in the raw stages refers to (unvalidated JSON, so looked up defensively). */
+function knobNamesIn(value: unknown, names: Set<string> = new Set()): Set<string> {
+  if (Array.isArray(value)) for (const item of value) knobNamesIn(item, names);
+  else if (isRawObject(value)) {
+    if (typeof value.knob === 'string') names.add(value.knob);
+    for (const child of Object.values(value)) if (typeof child === 'object') knobNamesIn(child, names);
+  }
+  return names;
+}
+
+function stageIdsIn(stages: unknown): string[] {
+  if (!Array.isArray(stages)) return [];
+  return stages.flatMap((stage: unknown) => (isRawObject(stage) && typeof stage.id === 'string' ? [stage.id] : []));
+}
+
+function splitOverride(override: string, fileName: string): { key: string; valueText: string; option: string } {
+  const equals = override.indexOf('=');
+  const key = equals < 0 ? override.trim() : override.slice(0, equals).trim();
+  const option = `--set ${key}`;
+  if (equals < 0 || key === '') {
+    throw new UserError(`--set ${override}: expected name=value, e.g. drive=0.8 or clip.diode=1n34a (for ${fileName})`);
+  }
+  return { key, valueText: override.slice(equals + 1).trim(), option };
+}
+
+function setKnobOrSetting(design: RawObject, key: string, value: unknown, option: string, fileName: string): string {
+  if (TOP_LEVEL_SETTINGS.includes(key)) {
+    design[key] = value;
+    return key;
+  }
+  const knobs = [...knobNamesIn(design.stages)];
+  if (!knobs.includes(key)) {
+    throw new UserError(`${option}: no knob "${key}" in ${fileName} ${suggestionText(key, [...knobs, ...TOP_LEVEL_SETTINGS])}`);
+  }
+  if (!isRawObject(design.knobs)) design.knobs = {};
+  (design.knobs as RawObject)[key] = value;
+  return childPath('knobs', key);
+}
+
+function setStageField(design: RawObject, keys: string[], value: unknown, option: string, fileName: string): string {
+  const [stageId, ...fieldKeys] = keys as [string, ...string[]];
+  const stages = Array.isArray(design.stages) ? (design.stages as unknown[]) : [];
+  const index = stages.findIndex((stage) => isRawObject(stage) && stage.id === stageId);
+  if (index < 0) throw new UserError(`${option}: no stage "${stageId}" in ${fileName} ${suggestionText(stageId, stageIdsIn(stages))}`);
+  let target = stages[index] as RawObject;
+  let jsonPath = childPath('stages', index);
+  for (const key of fieldKeys.slice(0, -1)) {
+    const inner = target[key];
+    if (!isRawObject(inner)) {
+      throw new UserError(`${option}: ${stageId}.${key} is not a pot in ${fileName} (set it whole, e.g. --set ${stageId}.${key}=22k)`);
+    }
+    target = inner;
+    jsonPath = childPath(jsonPath, key);
+  }
+  const last = fieldKeys[fieldKeys.length - 1]!;
+  target[last] = value;
+  return childPath(jsonPath, last);
+}
+
+/** Apply overrides to a copy of the raw design and remember which JSON path each one set. */
+export function applyOverridesTracked(raw: unknown, overrides: readonly string[], fileName: string): TrackedOverrides {
+  const overriddenPaths = new Map<string, string>();
+  if (overrides.length === 0) return { raw, overriddenPaths };
+  if (!isRawObject(raw)) throw new UserError(`${fileName}: expected a design (a JSON object)`);
+  const design = structuredClone(raw);
+  for (const override of overrides) {
+    const { key, valueText, option } = splitOverride(override, fileName);
+    const keys = key.split('.');
+    if (keys.some((part) => part === '')) throw new UserError(`${option}: malformed name (expected knob or stageId.field)`);
+    const value = toJsonValue(valueText);
+    const jsonPath = keys.length === 1 ? setKnobOrSetting(design, key, value, option, fileName) : setStageField(design, keys, value, option, fileName);
+    overriddenPaths.set(jsonPath, option);
+  }
+  return { raw: design, overriddenPaths };
+}
+
+/** Apply `--set`-style overrides to a raw design (a copy is returned; the input is not changed). */
+export function applyOverrides(raw: unknown, overrides: readonly string[], fileName: string): unknown {
+  return applyOverridesTracked(raw, overrides, fileName).raw;
+}

@@ -1,0 +1,106 @@
+/**
+ * Design files (JSON) to typed designs. Checks every field: names (with "did you mean"), values and
+ * units, physical ranges, parts and knobs; errors name the file (or the --set override) and the JSON path.
+ */
+import { readFile } from 'node:fs/promises';
+import path from 'node:path';
+import { UserError } from '../errors.js';
+import { DESIGN_FIELDS, fieldNames } from './fields.js';
+import { parseJsonText } from './jsonText.js';
+import { childPath, Locator } from './locator.js';
+import { applyOverridesTracked } from './overrides.js';
+import { addPartsFromObject, copyPartsLibrary, type PartsLibrary } from './parts.js';
+import { parseStage, type StageParseContext } from './parseStages.js';
+import { readNumberInRange, readObject, readString, rejectUnknownFields, requireField, showRaw } from './rawReaders.js';
+import { suggestionText } from './suggest.js';
+import type { Design, Resistance, Stage } from './types.js';
+import { parseValue } from './values.js';
+
+export const SUPPLY_MIN_VOLTS = 3;
+export const SUPPLY_MAX_VOLTS = 48;
+export const TEMPERATURE_MIN_C = -40;
+export const TEMPERATURE_MAX_C = 125;
+export const DEFAULT_TEMPERATURE_C = 25;
+export const DEFAULT_KNOB_POSITION = 0.5;
+
+function readSupplyVolts(value: unknown, where: Locator): number {
+  const volts = parseValue(value, where.at('supply'), 'volt');
+  if (volts < SUPPLY_MIN_VOLTS || volts > SUPPLY_MAX_VOLTS) {
+    throw new UserError(`${where.at('supply')}: ${showRaw(value)} is out of range (expected a supply from ${SUPPLY_MIN_VOLTS} to ${SUPPLY_MAX_VOLTS} volts)`);
+  }
+  return volts;
+}
+
+function parseStages(value: unknown, ctx: StageParseContext): Stage[] {
+  if (!Array.isArray(value) || value.length === 0) {
+    throw new UserError(`${ctx.where.at('stages')}: expected a non-empty array of stages, found ${showRaw(value)}`);
+  }
+  const firstPathOfId = new Map<string, string>();
+  return value.map((raw: unknown, index) => {
+    const stagePath = childPath('stages', index);
+    const stage = parseStage(raw, stagePath, ctx);
+    const earlier = firstPathOfId.get(stage.id);
+    if (earlier !== undefined) throw new UserError(`${ctx.where.at(childPath(stagePath, 'id'))}: duplicate stage id "${stage.id}" (already used by ${earlier})`);
+    firstPathOfId.set(stage.id, stagePath);
+    if (stage.type === 'input' && index !== 0) {
+      throw new UserError(`${ctx.where.at(childPath(stagePath, 'type'))}: an input stage must come first (it is the jack side of the circuit)`);
+    }
+    return stage;
+  });
+}
+
+/** Knob positions: listed knobs must be used by a pot; used knobs that are not listed sit at 0.5. */
+function parseKnobs(value: unknown, knobUses: ReadonlyMap<string, string>, where: Locator): Record<string, number> {
+  const knobs: Record<string, number> = {};
+  const used = [...knobUses.keys()];
+  if (value !== undefined) {
+    for (const [knob, position] of Object.entries(readObject(value, 'knobs', where, 'knob positions'))) {
+      const knobPath = childPath('knobs', knob);
+      if (!knobUses.has(knob)) throw new UserError(`${where.at(knobPath)}: knob "${knob}" is not used by any pot ${suggestionText(knob, used)}`);
+      knobs[knob] = readNumberInRange(position, knobPath, where, 'a knob position', 0, 1);
+    }
+  }
+  for (const knob of used) knobs[knob] ??= DEFAULT_KNOB_POSITION;
+  return knobs;
+}
+
+function defaultDesignName(fileName: string): string {
+  return path.basename(fileName).replace(/\.json$/i, '');
+}
+
+/** A parsed JSON value to a typed design; `where` names the file (and any overrides) in errors. */
+export function parseDesignObject(raw: unknown, where: Locator, parts: PartsLibrary): Design<Resistance> {
+  const design = readObject(raw, '', where, 'a design');
+  rejectUnknownFields(design, fieldNames(DESIGN_FIELDS), '', where, 'the design');
+  const library = design.parts === undefined ? parts : addPartsFromObject(copyPartsLibrary(parts), design.parts, 'parts', where);
+  const ctx: StageParseContext = { where, parts: library, knobUses: new Map() };
+  const supplyVolts = readSupplyVolts(requireField(design, 'supply', '', where, 'the design'), where);
+  const temperatureC =
+    design.temperature === undefined
+      ? DEFAULT_TEMPERATURE_C
+      : readNumberInRange(design.temperature, 'temperature', where, 'a temperature in degrees C', TEMPERATURE_MIN_C, TEMPERATURE_MAX_C);
+  const name = design.name === undefined ? defaultDesignName(where.fileName) : readString(design.name, 'name', where, 'a design name');
+  const stages = parseStages(requireField(design, 'stages', '', where, 'the design'), ctx);
+  const knobs = parseKnobs(design.knobs, ctx.knobUses, where);
+  return { name, supplyVolts, temperatureC, knobs, stages };
+}
+
+/** Design JSON text (from `fileName`) to a typed design, with `--set` overrides applied first. */
+export function parseDesignText(jsonText: string, fileName: string, parts: PartsLibrary, overrides: readonly string[] = []): Design<Resistance> {
+  const raw = parseJsonText(jsonText, fileName);
+  const { raw: overridden, overriddenPaths } = applyOverridesTracked(raw, overrides, fileName);
+  return parseDesignObject(overridden, new Locator(fileName, overriddenPaths), parts);
+}
+
+/** Read and parse a design file; `overrides` are `--set` texts such as `drive=0.8` or `clip.diode=1n34a`. */
+export async function readDesignFile(filePath: string, parts: PartsLibrary, overrides: readonly string[] = []): Promise<Design<Resistance>> {
+  let text: string;
+  try {
+    text = await readFile(filePath, 'utf8');
+  } catch (error) {
+    const code = (error as NodeJS.ErrnoException).code;
+    const reason = code === 'ENOENT' ? 'file not found' : code === 'EISDIR' ? 'is a folder, expected a design file' : (error as Error).message;
+    throw new UserError(`${filePath}: cannot read design (${reason})`);
+  }
+  return parseDesignText(text, filePath, parts, overrides);
+}

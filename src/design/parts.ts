@@ -1,0 +1,139 @@
+/**
+ * The parts library: diodes and op-amps by name (case-insensitive), loaded from
+ * `shared/parts.json` plus an optional user parts file of the same format that adds or overrides parts.
+ */
+import { readFileSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import { UserError } from '../errors.js';
+import { DIODE_FIELDS, OPAMP_FIELDS, PARTS_FILE_FIELDS, fieldNames } from './fields.js';
+import { parseJsonText } from './jsonText.js';
+import { childPath, Locator } from './locator.js';
+import { readNumberInRange, readObject, readString, rejectUnknownFields, requireField } from './rawReaders.js';
+import { suggestionText } from './suggest.js';
+import type { DiodeParams, OpampParams } from './types.js';
+import { parseValue } from './values.js';
+
+export interface PartsLibrary {
+  diodes: Map<string, DiodeParams>;
+  opamps: Map<string, OpampParams>;
+}
+
+/** The bundled library file; resolved from this module so it works from `src/` and from `dist/`. */
+export const BUNDLED_PARTS_PATH = fileURLToPath(new URL('../../shared/parts.json', import.meta.url));
+
+/** JSON cannot hold Infinity; the library writes "inf" (or null) for an unlimited value. */
+const UNLIMITED_MARKERS: readonly unknown[] = ['inf', 'Infinity', null];
+
+/** Ideality factors outside this range are not physical for junction diodes and LEDs. */
+const IDEALITY_MIN = 0.5;
+const IDEALITY_MAX = 20;
+
+function readUnlimited(value: unknown, path: string, where: Locator, unit: 'hertz' | 'volt' | 'voltPerSecond'): number {
+  if (UNLIMITED_MARKERS.includes(value)) return Infinity;
+  return parseValue(value, where.at(path), unit);
+}
+
+/** One diode entry (parts file, inline `parts`, or an inline diode object in a stage). */
+export function parseDiodeEntry(raw: unknown, name: string, path: string, where: Locator, defaultSource: string): DiodeParams {
+  const what = `diode "${name}"`;
+  const entry = readObject(raw, path, where, what);
+  rejectUnknownFields(entry, fieldNames(DIODE_FIELDS), path, where, what);
+  const field = (key: string): unknown => requireField(entry, key, path, where, what);
+  return {
+    name,
+    saturationCurrent: parseValue(field('saturationCurrent'), where.at(childPath(path, 'saturationCurrent')), 'ampere'),
+    ideality: readNumberInRange(field('ideality'), childPath(path, 'ideality'), where, 'an ideality factor', IDEALITY_MIN, IDEALITY_MAX),
+    seriesResistance: parseValue(field('seriesResistance'), where.at(childPath(path, 'seriesResistance')), 'ohm', { allowZero: true }),
+    ratedCurrent:
+      entry.ratedCurrent === undefined ? Infinity : parseValue(entry.ratedCurrent, where.at(childPath(path, 'ratedCurrent')), 'ampere'),
+    source: entry.source === undefined ? defaultSource : readString(entry.source, childPath(path, 'source'), where, 'a source note'),
+  };
+}
+
+export function parseOpampEntry(raw: unknown, name: string, path: string, where: Locator, defaultSource: string): OpampParams {
+  const what = `op-amp "${name}"`;
+  const entry = readObject(raw, path, where, what);
+  rejectUnknownFields(entry, fieldNames(OPAMP_FIELDS), path, where, what);
+  const field = (key: string): unknown => requireField(entry, key, path, where, what);
+  const at = (key: string): string => childPath(path, key);
+  const opamp: OpampParams = {
+    name,
+    gbwHz: readUnlimited(field('gbwHz'), at('gbwHz'), where, 'hertz'),
+    slewRateVoltsPerSecond: readUnlimited(field('slewRateVoltsPerSecond'), at('slewRateVoltsPerSecond'), where, 'voltPerSecond'),
+    headroomLowVolts: parseValue(field('headroomLowVolts'), where.at(at('headroomLowVolts')), 'volt', { allowZero: true }),
+    headroomHighVolts: parseValue(field('headroomHighVolts'), where.at(at('headroomHighVolts')), 'volt', { allowZero: true }),
+    supplyMinVolts: parseValue(field('supplyMinVolts'), where.at(at('supplyMinVolts')), 'volt', { allowZero: true }),
+    supplyMaxVolts: readUnlimited(field('supplyMaxVolts'), at('supplyMaxVolts'), where, 'volt'),
+    source: entry.source === undefined ? defaultSource : readString(entry.source, at('source'), where, 'a source note'),
+  };
+  if (opamp.supplyMaxVolts < opamp.supplyMinVolts) {
+    throw new UserError(`${where.at(at('supplyMaxVolts'))}: ${opamp.supplyMaxVolts} V is below supplyMinVolts (${opamp.supplyMinVolts} V)`);
+  }
+  return opamp;
+}
+
+/**
+ * Add the parts of a parts-file object (`{ diodes: {...}, opamps: {...} }`) to `library`, replacing
+ * parts of the same name. Returns the same library.
+ */
+export function addPartsFromObject(library: PartsLibrary, raw: unknown, path: string, where: Locator): PartsLibrary {
+  const parts = readObject(raw, path, where, 'a parts list');
+  rejectUnknownFields(parts, fieldNames(PARTS_FILE_FIELDS), path, where, 'a parts list');
+  const defaultSource = `defined in ${where.fileName}`;
+  if (parts.diodes !== undefined) {
+    const diodesPath = childPath(path, 'diodes');
+    for (const [name, entry] of Object.entries(readObject(parts.diodes, diodesPath, where, 'diodes by name'))) {
+      const key = name.toLowerCase();
+      library.diodes.set(key, parseDiodeEntry(entry, key, childPath(diodesPath, name), where, defaultSource));
+    }
+  }
+  if (parts.opamps !== undefined) {
+    const opampsPath = childPath(path, 'opamps');
+    for (const [name, entry] of Object.entries(readObject(parts.opamps, opampsPath, where, 'op-amps by name'))) {
+      const key = name.toLowerCase();
+      library.opamps.set(key, parseOpampEntry(entry, key, childPath(opampsPath, name), where, defaultSource));
+    }
+  }
+  return library;
+}
+
+function readPartsFile(library: PartsLibrary, filePath: string): void {
+  let text: string;
+  try {
+    text = readFileSync(filePath, 'utf8');
+  } catch (error) {
+    const reason = (error as NodeJS.ErrnoException).code === 'ENOENT' ? 'file not found' : (error as Error).message;
+    throw new UserError(`${filePath}: cannot read parts file (${reason})`);
+  }
+  addPartsFromObject(library, parseJsonText(text, filePath), '', new Locator(filePath));
+}
+
+/** The bundled library, plus the parts of `extraPartsFile` (same format) when given. */
+export function loadPartsLibrary(extraPartsFile?: string): PartsLibrary {
+  const library: PartsLibrary = { diodes: new Map(), opamps: new Map() };
+  readPartsFile(library, BUNDLED_PARTS_PATH);
+  if (extraPartsFile !== undefined) readPartsFile(library, extraPartsFile);
+  return library;
+}
+
+/** A copy whose maps can be extended without touching the original. */
+export function copyPartsLibrary(library: PartsLibrary): PartsLibrary {
+  return { diodes: new Map(library.diodes), opamps: new Map(library.opamps) };
+}
+
+function lookupPart<T>(parts: Map<string, T>, name: unknown, path: string, where: Locator, kind: string): T {
+  const partName = readString(name, path, where, `${kind} part name`);
+  const part = parts.get(partName.toLowerCase());
+  if (part === undefined) {
+    throw new UserError(`${where.at(path)}: unknown ${kind} "${partName}" ${suggestionText(partName.toLowerCase(), [...parts.keys()])}`);
+  }
+  return part;
+}
+
+export function lookupDiode(library: PartsLibrary, name: unknown, path: string, where: Locator): DiodeParams {
+  return lookupPart(library.diodes, name, path, where, 'diode');
+}
+
+export function lookupOpamp(library: PartsLibrary, name: unknown, path: string, where: Locator): OpampParams {
+  return lookupPart(library.opamps, name, path, where, 'op-amp');
+}
