@@ -164,5 +164,6 @@ function sampleFormatOf(fmt: FmtFields, fail: (problem: string) => never): WavSa
   }
   const tagHex = `0x${fmt.formatTag.toString(16).padStart(4, '0')}`;
   const name = UNSUPPORTED_FORMAT_NAMES.get(fmt.formatTag);
-  return fail(`unsupported encoding: ${name ?? 'unknown'} (format tag ${tagHex}); ${SUPPORTED_TEXT}`);
+  const encoding = name === undefined ? `format tag ${tagHex}` : `${name} (format tag ${tagHex})`;
+  return fail(`unsupported encoding: ${encoding}; ${SUPPORTED_TEXT}`);
 }

@@ -33,13 +33,13 @@ export async function readWavFile(path: string): Promise<DecodedWav> {
 export function decodeWav(bytes: Uint8Array, fileLabel: string): DecodedWav {
   const layout = parseWavLayout(bytes, fileLabel);
   const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  if (layout.format === 'float32' || layout.format === 'float64') assertUsableFloats(view, layout, fileLabel);
   const channels: Float32Array[] = [];
   for (let channel = 0; channel < layout.channelCount; channel++) {
     const samples = new Float32Array(layout.frames);
     decodeChannel(view, layout, channel, samples);
     channels.push(samples);
   }
-  if (layout.format === 'float32' || layout.format === 'float64') assertFiniteSamples(channels, fileLabel);
   return { path: fileLabel, sampleRate: layout.sampleRate, channels, format: layout.format, frames: layout.frames };
 }
 
@@ -95,18 +95,25 @@ function decodeChannel(view: DataView, layout: WavLayout, channel: number, out: 
   }
 }
 
-/** Reports the first frame (0-based) holding NaN or +-Infinity, or a float64 value beyond float32 range. */
-function assertFiniteSamples(channels: Float32Array[], fileLabel: string): void {
-  const frames = channels[0].length;
-  for (let i = 0; i < frames; i++) {
-    for (let channel = 0; channel < channels.length; channel++) {
-      const value = channels[channel][i];
-      if (!Number.isFinite(value)) {
-        throw new UserError(
-          `${fileLabel}: invalid float sample (${value}) at frame index ${i}, channel ${channel + 1} of ${channels.length}; ` +
-            'samples must be finite',
-        );
-      }
+const FLOAT32_MAX = 3.4028234663852886e38;
+
+/**
+ * Reports the first frame (0-based) holding NaN, +-Infinity, or (in a 64-bit file) a value beyond the
+ * 32-bit float range the samples are kept in.
+ */
+function assertUsableFloats(view: DataView, layout: WavLayout, fileLabel: string): void {
+  const isDouble = layout.format === 'float64';
+  const sampleCount = layout.frames * layout.channelCount;
+  for (let k = 0; k < sampleCount; k++) {
+    const offset = layout.dataOffset + k * layout.bytesPerSample;
+    const value = isDouble ? view.getFloat64(offset, true) : view.getFloat32(offset, true);
+    if (!(Math.abs(value) <= FLOAT32_MAX)) {
+      const frame = Math.floor(k / layout.channelCount);
+      const channel = (k % layout.channelCount) + 1;
+      throw new UserError(
+        `${fileLabel}: invalid float sample (${value}) at frame index ${frame}, channel ${channel} of ${layout.channelCount}; ` +
+          'samples must be finite and within the 32-bit float range',
+      );
     }
   }
 }
