@@ -5,10 +5,10 @@
  * once, so a render's memory is the audio plus a small constant.
  */
 import type { CircuitContext, Design, Stage } from '../design/types.js';
-import { createOversampler, type Oversampler } from '../dsp/oversampler.js';
+import { createOversampler, type OversampleFactor, type Oversampler } from '../dsp/oversampler.js';
 import { createStageProcessor, isNonlinearStage, type StageProcessor } from './stageModels.js';
 
-export type OversampleFactor = 1 | 2 | 4 | 8 | 16;
+export type { OversampleFactor };
 export const OVERSAMPLE_FACTORS: readonly OversampleFactor[] = [1, 2, 4, 8, 16];
 
 export const CHAIN_BLOCK_SIZE = 1024;

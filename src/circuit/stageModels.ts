@@ -4,15 +4,13 @@
  * to stages through this table.
  */
 import type { AnalogTransferFunction } from '../dsp/bilinear.js';
-import { analog } from '../dsp/bilinear.js';
 import type { CircuitContext, Stage } from '../design/types.js';
-import { taperFraction } from '../design/taper.js';
 import type { Processor } from './processor.js';
 import type { ConductionMeter } from './conduction.js';
 import { createInputStage, designInputStage, inputStageSmallSignal } from './inputStage.js';
 import { createToneStage, designToneStage, toneStageSmallSignal } from './tone.js';
 import { createRcFilter, designRcFilter, rcFilterSmallSignal } from './rcFilter.js';
-import { createVolumeStage, designVolumeStage } from './volume.js';
+import { createVolumeStage, designVolumeStage, volumeStageSmallSignal } from './volume.js';
 import { createGainStage, designGainStage, gainStageSmallSignal } from './gain.js';
 import { clipperSmallSignal, createClipper, designClipper } from './clipper.js';
 
@@ -74,11 +72,8 @@ export function stageSmallSignal(
     case 'lowpass':
     case 'highpass':
       return rcFilterSmallSignal(stage, ctx);
-    case 'volume': {
-      const position = knobs[stage.knob] ?? 0.5;
-      const fraction = taperFraction(stage.taper, stage.reverse ? 1 - position : position);
-      return analog([fraction], [1]);
-    }
+    case 'volume':
+      return volumeStageSmallSignal(stage, knobs[stage.knob] ?? 0.5);
     case 'gain':
       return gainStageSmallSignal(stage, ctx);
     case 'clipper':

@@ -1,10 +1,8 @@
 /** Parsers for command-line option values; each failure names the flag, the value and what is expected. */
 import { UserError } from '../errors.js';
 import { OVERSAMPLE_FACTORS, type OversampleFactor } from '../circuit/chain.js';
-import type { CalibrationScale } from '../render/renderTake.js';
-import type { WavBits } from '../render/renderJob.js';
-
-export type { WavBits } from '../render/renderJob.js';
+import type { CalibrationScale } from '../audio/calibration.js';
+import type { WavOutputBits } from '../audio/wavWrite.js';
 
 /** Commander reducer for repeatable options such as `--set a=1 --set b=2`. */
 export function collect(value: string, previous: string[] = []): string[] {
@@ -18,7 +16,7 @@ export function parseOversample(text: string): OversampleFactor {
   return match;
 }
 
-export function parseBits(text: string): WavBits {
+export function parseBits(text: string): WavOutputBits {
   if (text === '16' || text === '24' || text === '32f') return text;
   throw new UserError(`--bits: "${text}" is not one of 16, 24, 32f`);
 }

@@ -2,14 +2,11 @@
 import type { Command } from 'commander';
 import { UserError } from '../errors.js';
 import { loadPartsLibrary } from '../design/parts.js';
+import { formatValue } from '../design/values.js';
 import { formatTable } from '../report/table.js';
 
 function formatEngineering(value: number, unit: string): string {
-  if (!Number.isFinite(value)) return 'unlimited';
-  if (value === 0) return `0 ${unit}`;
-  const prefixes: [number, string][] = [[1e9, 'G'], [1e6, 'M'], [1e3, 'k'], [1, ''], [1e-3, 'm'], [1e-6, 'u'], [1e-9, 'n'], [1e-12, 'p'], [1e-15, 'f']];
-  const [scale, prefix] = prefixes.find(([s]) => Math.abs(value) >= s) ?? prefixes[prefixes.length - 1];
-  return `${Number((value / scale).toPrecision(4))} ${prefix}${unit}`;
+  return Number.isFinite(value) ? `${formatValue(value)} ${unit}` : 'unlimited';
 }
 
 export function registerPartsCommand(program: Command): void {

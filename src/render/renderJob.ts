@@ -5,16 +5,15 @@
 import path from 'node:path';
 import { readWavFile } from '../audio/wavRead.js';
 import { fromVolts } from '../audio/calibration.js';
-import { writeWavFile } from '../audio/wavWrite.js';
+import { writeWavFile, type WavOutputBits } from '../audio/wavWrite.js';
 import { assertNotAnInput, writeFileAtomic } from '../audio/atomicWrite.js';
 import { loadPartsLibrary } from '../design/parts.js';
 import { readDesignFile } from '../design/parseDesign.js';
 import { resolveDesign } from '../design/resolve.js';
 import type { OversampleFactor } from '../circuit/chain.js';
 import type { RenderProgress } from '../circuit/renderChannel.js';
-import { renderTake, type CalibrationScale, type RenderSummary } from './renderTake.js';
-
-export type WavBits = '16' | '24' | '32f';
+import type { CalibrationScale } from '../audio/calibration.js';
+import { renderTake, type RenderSummary } from './renderTake.js';
 
 export interface RenderJob {
   designPath: string;
@@ -26,7 +25,7 @@ export interface RenderJob {
   outputStem?: string;
   oversample: OversampleFactor;
   scale: CalibrationScale;
-  bits: WavBits;
+  bits: WavOutputBits;
 }
 
 export interface RenderJobResult {

@@ -3,13 +3,11 @@
  * a fresh chain, and gather the level figures the sidecar reports.
  */
 import type { DecodedWav } from '../audio/wavRead.js';
-import { toVolts } from '../audio/calibration.js';
+import { toVolts, type CalibrationScale } from '../audio/calibration.js';
 import type { Design } from '../design/types.js';
 import { buildChain, type OversampleFactor } from '../circuit/chain.js';
 import { renderChannel, type RenderProgress } from '../circuit/renderChannel.js';
 import { findOvers, measureLevels, voltsToDbfs, type OverReport } from './levels.js';
-
-export type CalibrationScale = { fullScaleVolts: number } | { inputPeakVolts: number };
 
 export interface RenderTakeOptions {
   oversample: OversampleFactor;
@@ -63,7 +61,7 @@ function levelFigures(channels: readonly Float64Array[], voltsAtFullScale: numbe
 }
 
 export function renderTake(design: Design<number>, wav: DecodedWav, options: RenderTakeOptions): RenderedTake {
-  const calibrated = toVolts(wav.channels, options.scale);
+  const calibrated = toVolts(wav.channels, options.scale, wav.path);
   const voltsAtFullScale = calibrated.voltsPerFullScale;
   const chain = buildChain(design, { sampleRate: wav.sampleRate, oversample: options.oversample });
   const conductingCounts = new Map<string, { conducting: number; counted: number }>();

@@ -1,0 +1,146 @@
+/**
+ * The `measure` bench: drives a resolved design with test signals in volts and gathers THD,
+ * harmonics, THD against level with onset points, predicted and measured small-signal responses,
+ * the static transfer curve, aliasing, small-signal gain and maximum output swing.
+ */
+import type { Design } from '../design/types.js';
+import { buildChain, OVERSAMPLE_FACTORS, type OversampleFactor } from '../circuit/chain.js';
+import { coherentBin, createToneAnalyzer, type HarmonicLine } from './coherentTone.js';
+import { runSteadyTone, settleSeconds } from './toneRun.js';
+import { findOnset, sweepThdByLevel, type LevelPoint } from './levelSweep.js';
+import {
+  compareResponses,
+  measureResponse,
+  predictResponse,
+  responseFrequencies,
+  type ResponseDisagreement,
+  type ResponsePoint,
+} from './response.js';
+import { staticTransferCurve, type TransferPoint } from './transferCurve.js';
+import { measureAliasing, type AliasPoint } from './aliasing.js';
+
+export interface MeasureOptions {
+  freqHz: number;
+  levelVolts: number;
+  oversample: OversampleFactor;
+  aliasSweep: boolean;
+  aliasFreqHz: number;
+  aliasLevelVolts: number;
+  sweepMinVolts: number;
+  sweepMaxVolts: number;
+  /** Sample rate the bench runs at (the file rate a render would have). */
+  sampleRate: number;
+}
+
+export const DEFAULT_MEASURE_OPTIONS: MeasureOptions = {
+  freqHz: 1000,
+  levelVolts: 0.5,
+  oversample: 8,
+  aliasSweep: false,
+  aliasFreqHz: 4500,
+  aliasLevelVolts: 1,
+  sweepMinVolts: 0.005,
+  sweepMaxVolts: 2,
+  sampleRate: 48000,
+};
+
+/** Prediction and measurement must agree within this wherever the chain is linear (issue spec). */
+export const RESPONSE_TOLERANCE_DB = 0.1;
+/** Level of the stepped sines for the measured response: low enough to keep diodes off. */
+export const RESPONSE_LEVEL_VOLTS = 0.001;
+
+const TONE_WINDOW = 16384;
+const ALIAS_WINDOW = 32768;
+const SWEEP_POINTS = 25;
+const RESPONSE_POINTS = 31;
+const TRANSFER_POINTS = 201;
+
+export interface MeasureReport {
+  design: string;
+  sampleRate: number;
+  oversample: OversampleFactor;
+  freqHz: number;
+  levelVolts: number;
+  thdPercent: number;
+  thdnPercent: number;
+  harmonics: HarmonicLine[];
+  evenShare: number;
+  oddShare: number;
+  outputPeakVolts: number;
+  thdByLevel: { volts: number; thdPercent: number }[];
+  onset: { '1': number | null; '3': number | null; '10': number | null };
+  response: ResponsePoint[];
+  responseMeasured: ResponsePoint[];
+  responseDisagreement: ResponseDisagreement[];
+  transfer: TransferPoint[];
+  aliasDbc: number;
+  aliasHz: number;
+  aliasByOversample: AliasPoint[];
+  gainDb: number;
+  maxOutputVolts: number;
+}
+
+export function measureDesign(design: Design<number>, options: MeasureOptions): MeasureReport {
+  const { sampleRate, oversample } = options;
+  const chain = buildChain(design, { sampleRate, oversample });
+  const settle = settleSeconds(design, sampleRate);
+  const bin = coherentBin(options.freqHz, sampleRate, TONE_WINDOW);
+  const toneOptions = { sampleRate, windowLength: TONE_WINDOW, fundamentalBin: bin, settleSeconds: settle };
+
+  const run = runSteadyTone(chain, { ...toneOptions, amplitudeVolts: options.levelVolts });
+  const tone = createToneAnalyzer(TONE_WINDOW, sampleRate).analyze(run.output, bin);
+  let outputPeak = 0;
+  for (let i = 0; i < run.output.length; i++) outputPeak = Math.max(outputPeak, Math.abs(run.output[i]));
+
+  const sweep: LevelPoint[] = sweepThdByLevel(chain, {
+    ...toneOptions,
+    minVolts: options.sweepMinVolts,
+    maxVolts: options.sweepMaxVolts,
+    points: SWEEP_POINTS,
+  });
+
+  const frequencies = responseFrequencies(sampleRate, TONE_WINDOW, RESPONSE_POINTS);
+  const response = predictResponse(design, sampleRate, oversample, frequencies);
+  const responseMeasured = measureResponse(
+    chain,
+    { sampleRate, windowLength: TONE_WINDOW, amplitudeVolts: RESPONSE_LEVEL_VOLTS, settleSeconds: settle },
+    frequencies,
+  );
+  const [gainPoint] = predictResponse(design, sampleRate, oversample, [tone.fundamentalHz]);
+
+  const aliasOptions = {
+    sampleRate,
+    windowLength: ALIAS_WINDOW,
+    fundamentalBin: coherentBin(options.aliasFreqHz, sampleRate, ALIAS_WINDOW),
+    amplitudeVolts: options.aliasLevelVolts,
+    settleSeconds: settle,
+  };
+  const aliasFactors = options.aliasSweep ? OVERSAMPLE_FACTORS : [oversample];
+  const aliasByOversample = aliasFactors.map((factor) => measureAliasing(design, factor, aliasOptions));
+  const chosenAlias = aliasByOversample.find((point) => point.oversample === oversample) ?? aliasByOversample[0];
+
+  return {
+    design: design.name,
+    sampleRate,
+    oversample,
+    freqHz: tone.fundamentalHz,
+    levelVolts: options.levelVolts,
+    thdPercent: tone.thdPercent,
+    thdnPercent: tone.thdnPercent,
+    harmonics: tone.harmonics,
+    evenShare: tone.evenShare,
+    oddShare: tone.oddShare,
+    outputPeakVolts: outputPeak,
+    thdByLevel: sweep.map(({ volts, thdPercent }) => ({ volts, thdPercent })),
+    onset: { '1': findOnset(sweep, 1), '3': findOnset(sweep, 3), '10': findOnset(sweep, 10) },
+    response,
+    responseMeasured,
+    responseDisagreement: compareResponses(response, responseMeasured, RESPONSE_TOLERANCE_DB),
+    transfer: staticTransferCurve(design, options.sweepMaxVolts, TRANSFER_POINTS),
+    aliasDbc: chosenAlias.aliasDbc,
+    aliasHz: chosenAlias.aliasHz,
+    aliasByOversample,
+    gainDb: gainPoint.db,
+    maxOutputVolts: Math.max(outputPeak, ...sweep.map((point) => point.outputPeakVolts)),
+  };
+}

@@ -1,0 +1,88 @@
+/**
+ * Small-signal frequency response of a design: predicted from the stage models (each stage's
+ * bilinear-discretised H at the rate it runs at; the oversampler is flat and its latency is
+ * compensated) and measured through the full model with stepped coherent sines at a low level.
+ */
+import type { Design } from '../design/types.js';
+import type { Chain } from '../circuit/chain.js';
+import { bilinearTransform, digitalResponse } from '../dsp/bilinear.js';
+import { isNonlinearStage, stageSmallSignal } from '../circuit/stageModels.js';
+import { coherentBin, createToneAnalyzer } from './coherentTone.js';
+import { runSteadyTone } from './toneRun.js';
+import { logSpaced } from './levelSweep.js';
+
+export interface ResponsePoint {
+  hz: number;
+  db: number;
+  deg: number;
+}
+
+function wrapDegrees(deg: number): number {
+  const wrapped = ((deg + 180) % 360 + 360) % 360 - 180;
+  return wrapped === -180 ? 180 : wrapped;
+}
+
+/** Frequencies from 20 Hz to 20 kHz, `perOctave` per octave, rounded to the bins of the window. */
+export function responseFrequencies(sampleRate: number, windowLength: number, points: number): number[] {
+  const bins = logSpaced(20, 20000, points).map((hz) => coherentBin(hz, sampleRate, windowLength));
+  return [...new Set(bins)].map((bin) => (bin * sampleRate) / windowLength);
+}
+
+export function predictResponse(
+  design: Design<number>,
+  sampleRate: number,
+  oversample: number,
+  frequencies: readonly number[],
+): ResponsePoint[] {
+  const base = { sampleRate, supplyVolts: design.supplyVolts, temperatureC: design.temperatureC };
+  const fast = { ...base, sampleRate: sampleRate * oversample };
+  const digital = design.stages.map((stage) => {
+    const ctx = isNonlinearStage(stage) && oversample > 1 ? fast : base;
+    return bilinearTransform(stageSmallSignal(stage, ctx, design.knobs), ctx.sampleRate);
+  });
+  return frequencies.map((hz) => {
+    let re = 1;
+    let im = 0;
+    for (const tf of digital) {
+      const [hr, hi] = digitalResponse(tf, hz);
+      [re, im] = [re * hr - im * hi, re * hi + im * hr];
+    }
+    return { hz, db: 10 * Math.log10(re * re + im * im), deg: wrapDegrees((Math.atan2(im, re) * 180) / Math.PI) };
+  });
+}
+
+export function measureResponse(
+  chain: Chain,
+  options: { sampleRate: number; windowLength: number; amplitudeVolts: number; settleSeconds: number },
+  frequencies: readonly number[],
+): ResponsePoint[] {
+  const analyzer = createToneAnalyzer(options.windowLength, options.sampleRate);
+  return frequencies.map((hz) => {
+    const bin = coherentBin(hz, options.sampleRate, options.windowLength);
+    const run = runSteadyTone(chain, { ...options, fundamentalBin: bin });
+    const input = analyzer.analyze(run.input, bin);
+    const output = analyzer.analyze(run.output, bin);
+    return {
+      hz,
+      db: 20 * Math.log10(output.fundamentalVolts / input.fundamentalVolts),
+      deg: wrapDegrees(((output.fundamentalPhase - input.fundamentalPhase) * 180) / Math.PI),
+    };
+  });
+}
+
+export interface ResponseDisagreement {
+  hz: number;
+  predictedDb: number;
+  measuredDb: number;
+}
+
+/** Points where prediction and measurement differ by more than `toleranceDb`. */
+export function compareResponses(
+  predicted: readonly ResponsePoint[],
+  measured: readonly ResponsePoint[],
+  toleranceDb: number,
+): ResponseDisagreement[] {
+  return predicted
+    .map((p, i) => ({ hz: p.hz, predictedDb: p.db, measuredDb: measured[i].db }))
+    .filter((point) => Math.abs(point.predictedDb - point.measuredDb) > toleranceDb);
+}

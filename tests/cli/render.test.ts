@@ -1,0 +1,126 @@
+import { mkdtempSync, readdirSync, readFileSync, writeFileSync, copyFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { writeWavFile } from '../../src/audio/wavWrite.js';
+import { readWavFile } from '../../src/audio/wavRead.js';
+import { PROJECT_ROOT, runCli } from '../helpers/cli.js';
+
+const design = path.join(PROJECT_ROOT, 'fixtures', 'designs', 'night-drive.json');
+let dir: string;
+let monoTake: string;
+let stereoTake: string;
+
+function sine(length: number, sampleRate: number, hz: number, amplitude: number): Float64Array {
+  const out = new Float64Array(length);
+  for (let n = 0; n < length; n++) out[n] = amplitude * Math.sin((2 * Math.PI * hz * n) / sampleRate);
+  return out;
+}
+
+beforeAll(async () => {
+  dir = mkdtempSync(path.join(tmpdir(), 'clipbench-render-'));
+  monoTake = path.join(dir, 'mono.wav');
+  stereoTake = path.join(dir, 'stereo.wav');
+  await writeWavFile(monoTake, [sine(24000, 48000, 220, 0.3)], 48000, '24');
+  await writeWavFile(stereoTake, [sine(22050, 44100, 330, 0.2), sine(22050, 44100, 440, 0.1)], 44100, '16');
+});
+
+describe('clipbench render', () => {
+  it('writes a WAV with the input length, rate and channels plus a JSON sidecar', async () => {
+    const out = path.join(dir, 'out1');
+    const result = runCli(['render', design, monoTake, stereoTake, '-o', out, '--oversample', '2']);
+    expect(result.stderr).not.toMatch(/internal error/);
+    expect(result.status).toBe(0);
+    const mono = await readWavFile(path.join(out, 'mono--night-drive.wav'));
+    expect(mono.sampleRate).toBe(48000);
+    expect(mono.frames).toBe(24000);
+    expect(mono.channels.length).toBe(1);
+    const stereo = await readWavFile(path.join(out, 'stereo--night-drive.wav'));
+    expect(stereo.sampleRate).toBe(44100);
+    expect(stereo.frames).toBe(22050);
+    expect(stereo.channels.length).toBe(2);
+    const sidecar = JSON.parse(readFileSync(path.join(out, 'mono--night-drive.json'), 'utf8'));
+    // 0.3 of full scale at the default 1 V full scale (BRIEF section 1 calibration).
+    expect(sidecar.input.peakVolts).toBeCloseTo(0.3, 3);
+    expect(sidecar.output.peakVolts).toBeGreaterThan(0);
+    expect(sidecar.conducting.clip).toBeGreaterThan(0);
+    expect(sidecar).toHaveProperty('overs.count');
+    expect(sidecar).toHaveProperty('output.crestDb');
+    expect(readdirSync(out).filter((name) => name.endsWith('.tmp'))).toEqual([]);
+  });
+
+  it('gives byte-identical files on repeated runs', () => {
+    const a = path.join(dir, 'repeat-a');
+    const b = path.join(dir, 'repeat-b');
+    expect(runCli(['render', design, monoTake, '-o', a, '--oversample', '2']).status).toBe(0);
+    expect(runCli(['render', design, monoTake, '-o', b, '--oversample', '2']).status).toBe(0);
+    for (const name of ['mono--night-drive.wav', 'mono--night-drive.json']) {
+      expect(readFileSync(path.join(a, name)).equals(readFileSync(path.join(b, name)))).toBe(true);
+    }
+  });
+
+  it('applies --set overrides (more drive, more output)', () => {
+    const low = path.join(dir, 'low');
+    const high = path.join(dir, 'high');
+    expect(runCli(['render', design, monoTake, '-o', low, '--oversample', '2', '--set', 'drive=0', '--set', 'level=1']).status).toBe(0);
+    expect(runCli(['render', design, monoTake, '-o', high, '--oversample', '2', '--set', 'drive=1', '--set', 'level=1']).status).toBe(0);
+    const rms = (file: string): number => JSON.parse(readFileSync(file, 'utf8')).output.rmsVolts;
+    expect(rms(path.join(high, 'mono--night-drive.json'))).toBeGreaterThan(rms(path.join(low, 'mono--night-drive.json')));
+  });
+
+  it('refuses to overwrite an input and leaves it untouched', () => {
+    const trap = path.join(dir, 'trap');
+    runCli(['render', design, monoTake, '-o', trap]); // creates the folder and a first render
+    const victim = path.join(trap, 'victim--night-drive.wav');
+    copyFileSync(monoTake, victim);
+    const before = readFileSync(victim);
+    const result = runCli(['render', design, victim, '-o', trap, '--oversample', '2']);
+    expect(result.status).not.toBe(0);
+    expect(result.stderr).toMatch(/overwrite|input/i);
+    expect(readFileSync(victim).equals(before)).toBe(true);
+  });
+
+  it('reports a missing take in one line without a stack trace and writes nothing', () => {
+    const out = path.join(dir, 'missing');
+    const result = runCli(['render', design, path.join(dir, 'nope.wav'), '-o', out]);
+    expect(result.status).not.toBe(0);
+    expect(result.stderr.trim().split('\n')).toHaveLength(1);
+    expect(result.stderr).toMatch(/nope\.wav/);
+    expect(result.stderr).not.toMatch(/\s+at\s/);
+    expect(readdirSync(out)).toEqual([]);
+  });
+
+  it('names the flag for a bad override', () => {
+    const result = runCli(['render', design, monoTake, '-o', path.join(dir, 'bad'), '--set', 'clip.diode=1n4149']);
+    expect(result.status).not.toBe(0);
+    expect(result.stderr).toMatch(/clip\.diode/);
+    expect(result.stderr).toMatch(/1n4148/); // did-you-mean suggestion
+  });
+
+  it('rejects a bad --oversample value', () => {
+    const result = runCli(['render', design, monoTake, '-o', path.join(dir, 'bad2'), '--oversample', '3']);
+    expect(result.status).not.toBe(0);
+    expect(result.stderr).toMatch(/--oversample/);
+  });
+
+  it('returns the input through a unity buffer design (24-bit round trip)', async () => {
+    const bufferDesign = path.join(dir, 'buffer.json');
+    writeFileSync(
+      bufferDesign,
+      JSON.stringify({ name: 'buffer', supply: 9, stages: [{ id: 'buf', type: 'gain', opamp: 'ideal' }] }),
+    );
+    const out = path.join(dir, 'unity');
+    const result = runCli(['render', bufferDesign, monoTake, '-o', out]);
+    expect(result.stderr).toBe('');
+    const input = await readWavFile(monoTake);
+    const output = await readWavFile(path.join(out, 'mono--buffer.wav'));
+    let err = 0;
+    let ref = 0;
+    for (let i = 2000; i < 22000; i++) {
+      err += (output.channels[0][i] - input.channels[0][i]) ** 2;
+      ref += input.channels[0][i] ** 2;
+    }
+    // Issue requirement: unity buffer null below -80 dB in band.
+    expect(10 * Math.log10(err / ref)).toBeLessThan(-80);
+  });
+});

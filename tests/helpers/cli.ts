@@ -1,0 +1,17 @@
+import { spawnSync } from 'node:child_process';
+import { fileURLToPath } from 'node:url';
+
+/** The compiled CLI; `npm test` builds it first (pretest). */
+export const CLI_PATH = fileURLToPath(new URL('../../dist/cli/main.js', import.meta.url));
+export const PROJECT_ROOT = fileURLToPath(new URL('../../', import.meta.url));
+
+export interface CliResult {
+  status: number | null;
+  stdout: string;
+  stderr: string;
+}
+
+export function runCli(args: string[], cwd = PROJECT_ROOT): CliResult {
+  const result = spawnSync(process.execPath, [CLI_PATH, ...args], { cwd, encoding: 'utf8', timeout: 120_000 });
+  return { status: result.status, stdout: result.stdout, stderr: result.stderr };
+}
