@@ -1,0 +1,146 @@
+/**
+ * Polyphase half-band interpolator (x2) and decimator (/2): the kernels of the oversampler.
+ * Only the non-zero taps are computed: the interpolator's odd outputs and the decimator's centre
+ * term are a plain delayed copy (h[M] = 1/2), the rest is one symmetric branch of 2K taps folded
+ * into K multiplies (Crochiere & Rabiner, Multirate Digital Signal Processing, 1983, ch. 3).
+ *
+ * Each filter owns its input buffer: `historyLength` samples of past input followed by room for a
+ * block. The caller (or the previous filter in a cascade) writes new samples at `historyLength` and
+ * calls `run`; the history then moves to the front. Nothing is allocated per block, and the state
+ * carries over exactly, so block boundaries do not change a single output bit.
+ */
+import type { HalfbandDesign } from './halfband.js';
+
+export interface HalfbandFilter {
+  /** Input buffer: `historyLength` past samples, then the new block. */
+  readonly buffer: Float64Array;
+  readonly historyLength: number;
+  /** Process `count` outputs' worth of input already placed in `buffer`; write to `output` at `outputOffset`. */
+  run(count: number, output: Float64Array, outputOffset: number): void;
+  reset(): void;
+}
+
+/**
+ * x2 interpolator, gain 2 (so the zero-stuffed signal keeps its level). `count` input samples give
+ * 2 count outputs. With taps c[t] = armTaps[t]:
+ *   y[2n]     = 2 sum_t c[t] x[n - t]
+ *   y[2n + 1] = x[n - (K - 1)]          (the centre tap, 2 * 1/2)
+ * Delay: M = 2K - 1 samples at the output rate.
+ */
+export function createHalfbandInterpolator(design: HalfbandDesign, maxInputLength: number): HalfbandFilter {
+  const halfArm = design.armTaps.length / 2;
+  const taps = design.armTaps.map((c) => 2 * c).subarray(0, halfArm);
+  const historyLength = 2 * halfArm - 1;
+  const buffer = new Float64Array(historyLength + maxInputLength);
+  return {
+    buffer,
+    historyLength,
+    run(count: number, output: Float64Array, outputOffset: number): void {
+      const last = 2 * halfArm - 1;
+      const centre = halfArm - 1;
+      let n = 0;
+      // Four outputs at a time: four independent sums share each tap load. Every output is summed
+      // in the same order as in the one-at-a-time tail, so results do not depend on block size.
+      for (; n + 4 <= count; n += 4) {
+        const newest = historyLength + n;
+        const oldest = newest - last;
+        let acc0 = 0;
+        let acc1 = 0;
+        let acc2 = 0;
+        let acc3 = 0;
+        for (let t = 0; t < halfArm; t++) {
+          const c = taps[t];
+          const hi = newest - t;
+          const lo = oldest + t;
+          acc0 += c * (buffer[hi] + buffer[lo]);
+          acc1 += c * (buffer[hi + 1] + buffer[lo + 1]);
+          acc2 += c * (buffer[hi + 2] + buffer[lo + 2]);
+          acc3 += c * (buffer[hi + 3] + buffer[lo + 3]);
+        }
+        const o = outputOffset + 2 * n;
+        const delayed = newest - centre;
+        output[o] = acc0;
+        output[o + 1] = buffer[delayed];
+        output[o + 2] = acc1;
+        output[o + 3] = buffer[delayed + 1];
+        output[o + 4] = acc2;
+        output[o + 5] = buffer[delayed + 2];
+        output[o + 6] = acc3;
+        output[o + 7] = buffer[delayed + 3];
+      }
+      for (; n < count; n++) {
+        const newest = historyLength + n;
+        let acc = 0;
+        for (let t = 0; t < halfArm; t++) acc += taps[t] * (buffer[newest - t] + buffer[newest - last + t]);
+        const o = outputOffset + 2 * n;
+        output[o] = acc;
+        output[o + 1] = buffer[newest - centre];
+      }
+      buffer.copyWithin(0, count, count + historyLength);
+    },
+    reset(): void {
+      buffer.fill(0);
+    },
+  };
+}
+
+/**
+ * /2 decimator, gain 1. `count` outputs consume 2 count input samples. With f the filtered input,
+ * z[n] = f[2n - extraDelay], extraDelay 0 or 1 (one input-rate sample of padding, chosen by the
+ * cascade to make its total latency whole):
+ *   f[m] = sum_t c[t] v[m - 2t] + v[m - M] / 2
+ * Delay: M + extraDelay samples at the input rate.
+ */
+export function createHalfbandDecimator(
+  design: HalfbandDesign,
+  maxOutputLength: number,
+  extraDelay: 0 | 1,
+): HalfbandFilter {
+  const halfArm = design.armTaps.length / 2;
+  const taps = design.armTaps.slice(0, halfArm);
+  const delay = design.delaySamples;
+  const span = 2 * (2 * halfArm - 1); // distance from the newest to the oldest tap of the branch
+  const historyLength = span + 1;
+  const buffer = new Float64Array(historyLength + 2 * maxOutputLength);
+  return {
+    buffer,
+    historyLength,
+    run(count: number, output: Float64Array, outputOffset: number): void {
+      const start = historyLength - extraDelay;
+      let n = 0;
+      // Four outputs at a time, summed in the same order as the one-at-a-time tail (see above).
+      for (; n + 4 <= count; n += 4) {
+        const newest = start + 2 * n;
+        const oldest = newest - span;
+        let acc0 = 0.5 * buffer[newest - delay];
+        let acc1 = 0.5 * buffer[newest + 2 - delay];
+        let acc2 = 0.5 * buffer[newest + 4 - delay];
+        let acc3 = 0.5 * buffer[newest + 6 - delay];
+        for (let t = 0; t < halfArm; t++) {
+          const c = taps[t];
+          const hi = newest - 2 * t;
+          const lo = oldest + 2 * t;
+          acc0 += c * (buffer[hi] + buffer[lo]);
+          acc1 += c * (buffer[hi + 2] + buffer[lo + 2]);
+          acc2 += c * (buffer[hi + 4] + buffer[lo + 4]);
+          acc3 += c * (buffer[hi + 6] + buffer[lo + 6]);
+        }
+        const o = outputOffset + n;
+        output[o] = acc0;
+        output[o + 1] = acc1;
+        output[o + 2] = acc2;
+        output[o + 3] = acc3;
+      }
+      for (; n < count; n++) {
+        const newest = start + 2 * n;
+        let acc = 0.5 * buffer[newest - delay];
+        for (let t = 0; t < halfArm; t++) acc += taps[t] * (buffer[newest - 2 * t] + buffer[newest - span + 2 * t]);
+        output[outputOffset + n] = acc;
+      }
+      buffer.copyWithin(0, 2 * count, 2 * count + historyLength);
+    },
+    reset(): void {
+      buffer.fill(0);
+    },
+  };
+}
