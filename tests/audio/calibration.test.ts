@@ -1,0 +1,86 @@
+import { describe, expect, test } from 'vitest';
+import { fromVolts, peakOf, rmsOf, toDbfs, toVolts } from '../../src/audio/calibration.js';
+import { encodeWav } from '../../src/audio/wavWrite.js';
+import { UserError } from '../../src/errors.js';
+import { expectClose } from '../helpers/expectClose.js';
+
+/** Seeded float32 samples in [-0.9, 0.9] on the 24-bit grid, as a 24-bit file would give. */
+function takeSamples(frames: number, seed: number): Float32Array {
+  const out = new Float32Array(frames);
+  let state = seed >>> 0;
+  for (let i = 0; i < frames; i++) {
+    state = (Math.imul(state, 1664525) + 1013904223) >>> 0; // Numerical Recipes LCG, fixed seed
+    out[i] = Math.round((state / 2 ** 32 - 0.5) * 1.8 * 2 ** 23) / 2 ** 23;
+  }
+  return out;
+}
+
+describe('toVolts / fromVolts', () => {
+  test('full-scale mode: volts = samples x fullScaleVolts, and back is exact', () => {
+    const take = [takeSamples(5000, 1), takeSamples(5000, 2)];
+    for (const fullScaleVolts of [1, 0.5, 2.5, 1.2345, 10 / 3]) {
+      const calibrated = toVolts(take, { fullScaleVolts });
+      expect(calibrated.voltsPerFullScale).toBe(fullScaleVolts);
+      expectClose(calibrated.channels[1][17], take[1][17] * fullScaleVolts, { rtol: 1e-15 });
+      const back = fromVolts(calibrated.channels, calibrated.voltsPerFullScale);
+      // A unity design must return its input: same float32 samples and the same file bytes.
+      for (let c = 0; c < 2; c++) expect(Float32Array.from(back[c])).toEqual(take[c]);
+      expect(Buffer.from(encodeWav(back, 48_000, '24')).equals(Buffer.from(encodeWav(take, 48_000, '24')))).toBe(true);
+    }
+  });
+
+  test('input-peak mode: the loudest sample of any channel becomes the requested volts', () => {
+    const left = Float32Array.from([0.1, -0.2, 0.05]);
+    const right = Float32Array.from([0.3, -0.4, 0.25]);
+    const calibrated = toVolts([left, right], { inputPeakVolts: 0.5 });
+    expectClose(calibrated.voltsPerFullScale, 0.5 / Math.fround(0.4), { rtol: 1e-15 });
+    expectClose(calibrated.inputPeakVolts, 0.5, { rtol: 1e-15 });
+    expectClose(peakOf(calibrated.channels), 0.5, { rtol: 1e-15 });
+    expectClose(calibrated.channels[0][1], -0.5 * (Math.fround(0.2) / Math.fround(0.4)), { rtol: 1e-15 });
+    const back = fromVolts(calibrated.channels, calibrated.voltsPerFullScale);
+    expect(Float32Array.from(back[0])).toEqual(left);
+    expect(Float32Array.from(back[1])).toEqual(right);
+  });
+
+  test('full-scale mode reports the input peak in volts', () => {
+    expectClose(toVolts([Float32Array.from([0.25, -0.5])], { fullScaleVolts: 2 }).inputPeakVolts, 1, { rtol: 1e-15 });
+  });
+
+  test('a silent take cannot be scaled to an input peak', () => {
+    const silent = [new Float32Array(100)];
+    expect(() => toVolts(silent, { inputPeakVolts: 0.3 }, 'quiet.wav')).toThrow(UserError);
+    expect(() => toVolts(silent, { inputPeakVolts: 0.3 }, 'quiet.wav')).toThrow(/quiet\.wav: take is silent/);
+    expect(toVolts(silent, { fullScaleVolts: 1 }).inputPeakVolts).toBe(0);
+  });
+
+  test('scales must be positive, finite volts', () => {
+    const take = [Float32Array.from([0.1])];
+    for (const bad of [0, -1, Number.NaN, Number.POSITIVE_INFINITY]) {
+      expect(() => toVolts(take, { fullScaleVolts: bad })).toThrow(UserError);
+      expect(() => toVolts(take, { inputPeakVolts: bad })).toThrow(UserError);
+      expect(() => fromVolts([Float64Array.from([0.1])], bad)).toThrow(UserError);
+    }
+  });
+});
+
+describe('level helpers', () => {
+  test('a full-scale sine has RMS 1/sqrt(2), -3.01 dBFS (textbook: RMS of A sin is A/sqrt(2))', () => {
+    const sine = new Float64Array(48_000);
+    for (let i = 0; i < sine.length; i++) sine[i] = Math.sin((2 * Math.PI * 1000 * i) / 48_000); // whole periods
+    expectClose(peakOf([sine]), 1, { atol: 1e-12 });
+    expectClose(rmsOf([sine]), Math.SQRT1_2, { rtol: 1e-12 });
+    expectClose(toDbfs(rmsOf([sine])), -3.0103, { atol: 1e-4 });
+  });
+
+  test('rms and peak run over all channels together', () => {
+    expect(peakOf([Float32Array.from([0.1, -0.2]), Float64Array.from([0.05, -0.7])])).toBeCloseTo(0.7, 7);
+    expectClose(rmsOf([Float64Array.from([1, 1]), Float64Array.from([0, 0])]), Math.SQRT1_2, { rtol: 1e-15 });
+    expect(rmsOf([])).toBe(0);
+  });
+
+  test('toDbfs: half scale is -6.02 dB, full scale 0 dB, silence -Infinity', () => {
+    expectClose(toDbfs(0.5), -6.0206, { atol: 1e-4 }); // 20 log10(2) = 6.0206
+    expect(toDbfs(1)).toBe(0);
+    expect(toDbfs(0)).toBe(Number.NEGATIVE_INFINITY);
+  });
+});
