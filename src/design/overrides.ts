@@ -66,6 +66,13 @@ function setKnobOrSetting(design: RawObject, key: string, value: unknown, option
   return childPath('knobs', key);
 }
 
+/** A pot replaced by a fixed value takes its knob along, unless another pot still uses it. */
+function forgetUnusedKnobs(design: RawObject, knobs: Set<string>): void {
+  if (!isRawObject(design.knobs)) return;
+  const stillUsed = knobNamesIn(design.stages);
+  for (const knob of knobs) if (!stillUsed.has(knob)) delete design.knobs[knob];
+}
+
 function setStageField(design: RawObject, keys: string[], value: unknown, option: string, fileName: string): string {
   const [stageId, ...fieldKeys] = keys as [string, ...string[]];
   const stages = Array.isArray(design.stages) ? (design.stages as unknown[]) : [];
@@ -82,7 +89,9 @@ function setStageField(design: RawObject, keys: string[], value: unknown, option
     jsonPath = childPath(jsonPath, key);
   }
   const last = fieldKeys[fieldKeys.length - 1]!;
+  const replacedKnobs = knobNamesIn(target[last]);
   target[last] = value;
+  forgetUnusedKnobs(design, replacedKnobs);
   return childPath(jsonPath, last);
 }
 

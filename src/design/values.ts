@@ -66,8 +66,9 @@ const UNITS: Readonly<Record<ValueUnit, UnitInfo>> = {
 const PREFIX_CLASS = 'pnuµμmkKMG';
 // "4.7k", "100", "1e-7", ".5m" followed by an optional unit symbol.
 const SI_PATTERN = new RegExp(`^((?:\\d+(?:\\.\\d*)?|\\.\\d+)(?:[eE][+-]?\\d+)?)\\s?([${PREFIX_CLASS}]?)(.*)$`);
-// RKM (IEC 60062): digits, one multiplier letter in place of the decimal point, digits; optional unit after.
-const RKM_PATTERN = new RegExp(`^(\\d*)([${PREFIX_CLASS}RFVA])(\\d+)(.*)$`);
+// RKM (IEC 60062): digits, one multiplier letter in place of the decimal point, digits (either side may
+// be empty, not both: "R47", "4k7", "332R"); optional unit after.
+const RKM_PATTERN = new RegExp(`^(\\d*)([${PREFIX_CLASS}RFVA])(\\d*)(.*)$`);
 
 function describeValue(value: unknown): string {
   if (typeof value === 'string') return JSON.stringify(value);
@@ -105,7 +106,9 @@ function parseString(text: string, info: UnitInfo): number | null {
   if (rkm) {
     const [, whole, letter, fraction, suffix] = rkm as unknown as [string, string, string, string, string];
     const exponent = exponentOf(letter, info);
-    if (exponent !== null && unitSuffixOk(suffix, info)) return scaleDecimal(`${whole === '' ? '0' : whole}.${fraction}`, exponent);
+    if (exponent !== null && whole + fraction !== '' && unitSuffixOk(suffix, info)) {
+      return scaleDecimal(`${whole === '' ? '0' : whole}.${fraction === '' ? '0' : fraction}`, exponent);
+    }
   }
   return null;
 }
