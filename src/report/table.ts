@@ -1,0 +1,44 @@
+/** Plain-text tables for the terminal: padded columns, a rule under the header, ASCII only. */
+
+export interface TextColumn {
+  title: string;
+  align?: 'left' | 'right';
+}
+
+export interface TextTable {
+  columns: readonly TextColumn[];
+  rows: readonly (readonly string[])[];
+}
+
+/** Shown for a value that does not exist (null), e.g. the THD of a take without a tone. */
+export const MISSING_VALUE = 'n/a';
+
+/** Fixed-decimal number with an optional unit; `MISSING_VALUE` for null or non-finite values. */
+export function formatValue(value: number | null, decimals: number, unit = ''): string {
+  if (value === null || !Number.isFinite(value)) return MISSING_VALUE;
+  const text = value.toFixed(decimals);
+  return unit ? `${text} ${unit}` : text;
+}
+
+export function formatTable(table: TextTable): string {
+  const widths = table.columns.map((column, i) =>
+    Math.max(column.title.length, ...table.rows.map((row) => (row[i] ?? '').length)),
+  );
+  const pad = (text: string, i: number): string =>
+    table.columns[i].align === 'right' ? text.padStart(widths[i]) : text.padEnd(widths[i]);
+  const line = (cells: readonly string[]): string =>
+    table.columns.map((_, i) => pad(cells[i] ?? '', i)).join('  ').trimEnd();
+  const header = line(table.columns.map((c) => c.title));
+  const rule = widths.map((w) => '-'.repeat(w)).join('  ');
+  return [header, rule, ...table.rows.map(line)].join('\n') + '\n';
+}
+
+/** Shorthand: a table from column titles (numbers right-aligned by content) and string rows. */
+export function formatRows(titles: readonly string[], rows: readonly (readonly string[])[]): string {
+  const numeric = /^[-+]?\d/;
+  const columns = titles.map((title, i) => ({
+    title,
+    align: rows.length > 0 && rows.every((row) => numeric.test(row[i] ?? '')) ? ('right' as const) : ('left' as const),
+  }));
+  return formatTable({ columns, rows });
+}

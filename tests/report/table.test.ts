@@ -1,0 +1,29 @@
+import { describe, expect, it } from 'vitest';
+import { formatTable, formatValue, MISSING_VALUE } from '../../src/report/table.js';
+
+describe('formatTable', () => {
+  it('pads columns, right-aligns numbers and draws a rule under the header', () => {
+    const text = formatTable({
+      columns: [{ title: 'Quantity' }, { title: 'Value', align: 'right' }],
+      rows: [
+        ['Peak', '-0.50 dBFS'],
+        ['Integrated loudness', '-23.0 LUFS'],
+      ],
+    });
+    expect(text).toBe(
+      [
+        'Quantity                  Value',
+        '-------------------  ----------',
+        'Peak                 -0.50 dBFS',
+        'Integrated loudness  -23.0 LUFS',
+        '',
+      ].join('\n'),
+    );
+  });
+
+  it('formats missing values as n/a', () => {
+    expect(formatValue(null, 2, 'dB')).toBe(MISSING_VALUE);
+    expect(formatValue(Number.NEGATIVE_INFINITY, 2)).toBe(MISSING_VALUE);
+    expect(formatValue(-3.14159, 2, 'dB')).toBe('-3.14 dB');
+  });
+});
