@@ -7,7 +7,7 @@ import { synthesizeDemoTake } from '../audio/demoTake.js';
 import { writeWavFile } from '../audio/wavWrite.js';
 import { runRenderJobs } from '../render/workerPool.js';
 import type { RenderJob } from '../render/renderJob.js';
-import { formatTable } from '../report/table.js';
+import { formatRows } from '../report/table.js';
 import { parseOversample } from './options.js';
 import { createProgressBar } from './progress.js';
 
@@ -56,7 +56,7 @@ export function registerDemoCommand(program: Command): void {
         ];
       });
       process.stdout.write(
-        formatTable(['design', 'render', 'in peak V', 'out peak V', 'out RMS dBFS', 'diodes on'], rows),
+        formatRows(['design', 'render', 'in peak V', 'out peak V', 'out RMS dBFS', 'diodes on'], rows),
       );
       process.stdout.write(
         '\nCaution: rendered drive can be loud. Start playback at a low volume and raise it slowly.\n',

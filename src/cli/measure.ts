@@ -5,7 +5,7 @@ import { loadPartsLibrary } from '../design/parts.js';
 import { readDesignFile } from '../design/parseDesign.js';
 import { resolveDesign } from '../design/resolve.js';
 import { DEFAULT_MEASURE_OPTIONS, measureDesign, type MeasureReport } from '../analysis/measureDesign.js';
-import { formatTable } from '../report/table.js';
+import { formatRows } from '../report/table.js';
 import { writeMeasureHtml, writeMeasureJson } from '../report/measureReport.js';
 import { collect, parseOversample, parsePositiveNumber } from './options.js';
 
@@ -29,7 +29,7 @@ export function summarizeMeasurement(report: MeasureReport): string {
   const lines: string[] = [];
   lines.push(`${report.design}: ${report.freqHz.toFixed(1)} Hz at ${report.levelVolts} V peak in, oversampling ${report.oversample}x`);
   lines.push(
-    formatTable(
+    formatRows(
       ['figure', 'value'],
       [
         ['THD', `${report.thdPercent.toPrecision(4)} %`],
@@ -47,7 +47,7 @@ export function summarizeMeasurement(report: MeasureReport): string {
   );
   lines.push('Harmonics');
   lines.push(
-    formatTable(
+    formatRows(
       ['order', 'Hz', 'dBc', 'volts'],
       report.harmonics.slice(0, 10).map((h) => [String(h.order), h.hz.toFixed(1), h.dbc.toFixed(1), h.volts.toExponential(3)]),
     ),
@@ -55,7 +55,7 @@ export function summarizeMeasurement(report: MeasureReport): string {
   if (report.aliasByOversample.length > 1) {
     lines.push('Aliasing by oversampling factor');
     lines.push(
-      formatTable(
+      formatRows(
         ['factor', 'alias dBc', 'at Hz'],
         report.aliasByOversample.map((a) => [String(a.oversample), a.aliasDbc.toFixed(1), a.aliasHz.toFixed(0)]),
       ),

@@ -3,7 +3,7 @@ import type { Command } from 'commander';
 import { UserError } from '../errors.js';
 import { loadPartsLibrary } from '../design/parts.js';
 import { formatValue } from '../design/values.js';
-import { formatTable } from '../report/table.js';
+import { formatRows } from '../report/table.js';
 
 function formatEngineering(value: number, unit: string): string {
   return Number.isFinite(value) ? `${formatValue(value)} ${unit}` : 'unlimited';
@@ -35,7 +35,7 @@ export function registerPartsCommand(program: Command): void {
       if (diodes.length > 0) {
         process.stdout.write('Diodes (Shockley model with series resistance)\n');
         process.stdout.write(
-          formatTable(
+          formatRows(
             ['name', 'Is', 'n', 'Rs', 'rated', 'source'],
             diodes.map((d) => [d.name, formatEngineering(d.saturationCurrent, 'A'), d.ideality.toFixed(3), formatEngineering(d.seriesResistance, 'ohm'), formatEngineering(d.ratedCurrent, 'A'), d.source]),
           ),
@@ -44,7 +44,7 @@ export function registerPartsCommand(program: Command): void {
       if (opamps.length > 0) {
         process.stdout.write(`${diodes.length > 0 ? '\n' : ''}Op-amps\n`);
         process.stdout.write(
-          formatTable(
+          formatRows(
             ['name', 'GBW', 'slew', 'headroom -/+', 'supply', 'source'],
             opamps.map((o) => [
               o.name,

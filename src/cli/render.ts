@@ -3,7 +3,7 @@ import { mkdir } from 'node:fs/promises';
 import type { Command } from 'commander';
 import { runRenderJobs } from '../render/workerPool.js';
 import type { RenderJob } from '../render/renderJob.js';
-import { formatTable } from '../report/table.js';
+import { formatRows } from '../report/table.js';
 import { collect, parseBits, parseCalibration, parseOversample } from './options.js';
 import { createProgressBar } from './progress.js';
 
@@ -72,7 +72,7 @@ export function registerRenderCommand(program: Command): void {
       });
       if (rows.length > 0) {
         process.stdout.write(
-          formatTable(['output', 'in peak V', 'out peak V', 'out peak dBFS', 'crest dB', 'diodes on', 'overs'], rows),
+          formatRows(['output', 'in peak V', 'out peak V', 'out peak dBFS', 'crest dB', 'diodes on', 'overs'], rows),
         );
         process.stdout.write('Caution: rendered drive can be loud. Start playback at a low volume.\n');
       }

@@ -1,0 +1,155 @@
+/**
+ * `npm run bench`: render speed and clipper fidelity.
+ *
+ * Renders a 60 s DI-like take (mono, 48 kHz) through the full example chain (fixtures/designs/
+ * night-drive.json: input, TL072 gain stage with drive pot, RC diode clipper with a 1N4148 pair,
+ * tone, volume) at every oversampling factor and prints x real time, ns per oversampled sample and
+ * peak RSS. For the clipper it compares the fast solver against the plain per-sample Newton-Raphson
+ * reference (same rate, tight tolerance): waveform error in dB and the largest harmonic level
+ * difference on a 1 kHz tone, plus the speed ratio between the two.
+ *
+ * Options: --seconds S (default 60), --json file, --factors 1,2,4,8,16
+ */
+import { fileURLToPath } from 'node:url';
+import { synthesizeDemoTake } from '../audio/demoTake.js';
+import { writeFileAtomic } from '../audio/atomicWrite.js';
+import { loadPartsLibrary } from '../design/parts.js';
+import { readDesignFile } from '../design/parseDesign.js';
+import { resolveDesign } from '../design/resolve.js';
+import type { ClipperStage, Design } from '../design/types.js';
+import { buildChain, OVERSAMPLE_FACTORS, type OversampleFactor } from '../circuit/chain.js';
+import { renderChannel } from '../circuit/renderChannel.js';
+import { createClipper, designClipper } from '../circuit/clipper.js';
+import type { DiodeSolverKind } from '../circuit/diodeNode.js';
+import { coherentBin, createToneAnalyzer } from '../analysis/coherentTone.js';
+import { formatRows } from '../report/table.js';
+
+const BASE_RATE = 48000;
+const DESIGN_PATH = fileURLToPath(new URL('../../fixtures/designs/night-drive.json', import.meta.url));
+/** Targets from the speed issue: full chain at 8x, clipper fidelity at 8x. */
+const TARGET_REAL_TIME_AT_8X = 100;
+const TARGET_WAVEFORM_ERROR_DB = -60;
+const TARGET_HARMONIC_DELTA_DB = 0.05;
+
+interface FactorResult {
+  oversample: OversampleFactor;
+  realTime: number;
+  nsPerOversampledSample: number;
+  peakRssMiB: number;
+  clipperWaveformErrorDb: number;
+  clipperHarmonicDeltaDb: number;
+  clipperSpeedupVsNewton: number;
+}
+
+function parseArgs(argv: string[]): { seconds: number; json?: string; factors: OversampleFactor[] } {
+  const get = (flag: string): string | undefined => {
+    const index = argv.indexOf(flag);
+    return index >= 0 ? argv[index + 1] : undefined;
+  };
+  const seconds = Number(get('--seconds') ?? 60);
+  const factors = (get('--factors') ?? OVERSAMPLE_FACTORS.join(','))
+    .split(',')
+    .map(Number)
+    .filter((f): f is OversampleFactor => (OVERSAMPLE_FACTORS as readonly number[]).includes(f));
+  return { seconds: Number.isFinite(seconds) && seconds > 0 ? seconds : 60, json: get('--json'), factors };
+}
+
+function timeIt(run: () => void): number {
+  const start = process.hrtime.bigint();
+  run();
+  return Number(process.hrtime.bigint() - start) / 1e9;
+}
+
+function clipperStage(design: Design<number>): ClipperStage<number> {
+  const stage = design.stages.find((s): s is ClipperStage<number> => s.type === 'clipper');
+  if (!stage) throw new Error('bench design has no clipper stage');
+  return stage;
+}
+
+function runClipper(stage: ClipperStage<number>, design: Design<number>, rate: number, solver: DiodeSolverKind, input: Float64Array): { output: Float64Array; seconds: number } {
+  const ctx = { sampleRate: rate, supplyVolts: design.supplyVolts, temperatureC: design.temperatureC };
+  const clipper = createClipper(designClipper(stage, ctx, { solver }));
+  const output = Float64Array.from(input);
+  const seconds = timeIt(() => clipper.process(output));
+  return { output, seconds };
+}
+
+/** Clipper alone at the oversampled rate: fast solver vs Newton reference on a hot 1 kHz tone. */
+function clipperFidelity(design: Design<number>, factor: OversampleFactor): Pick<FactorResult, 'clipperWaveformErrorDb' | 'clipperHarmonicDeltaDb' | 'clipperSpeedupVsNewton'> {
+  const rate = BASE_RATE * factor;
+  const windowLength = 2 ** Math.ceil(Math.log2(rate / 4)); // >= 0.25 s
+  const bin = coherentBin(1000, rate, windowLength);
+  const settle = windowLength; // one window of settling, then one analysed
+  const input = new Float64Array(settle + windowLength);
+  for (let n = 0; n < input.length; n++) input[n] = 4 * Math.sin((2 * Math.PI * bin * (n % windowLength)) / windowLength);
+  const stage = clipperStage(design);
+  const fast = runClipper(stage, design, rate, 'table', input);
+  const reference = runClipper(stage, design, rate, 'newton', input);
+  let err = 0;
+  let ref = 0;
+  for (let i = 0; i < input.length; i++) {
+    err += (fast.output[i] - reference.output[i]) ** 2;
+    ref += reference.output[i] ** 2;
+  }
+  const analyzer = createToneAnalyzer(windowLength, rate);
+  const a = analyzer.analyze(fast.output.subarray(settle), bin);
+  const b = analyzer.analyze(reference.output.subarray(settle), bin);
+  let delta = 0;
+  a.harmonics.forEach((h, i) => {
+    if (b.harmonics[i].dbc > -100) delta = Math.max(delta, Math.abs(h.dbc - b.harmonics[i].dbc));
+  });
+  return {
+    clipperWaveformErrorDb: err > 0 ? 10 * Math.log10(err / ref) : -300,
+    clipperHarmonicDeltaDb: delta,
+    clipperSpeedupVsNewton: reference.seconds / fast.seconds,
+  };
+}
+
+async function main(): Promise<void> {
+  const args = parseArgs(process.argv.slice(2));
+  const design = resolveDesign(await readDesignFile(DESIGN_PATH, loadPartsLibrary()));
+  const take = synthesizeDemoTake({ sampleRate: BASE_RATE, seconds: args.seconds });
+  const decodedMiB = (take.volts.length * 4) / 2 ** 20; // as a decoded float32 WAV would hold it
+  process.stdout.write(`Bench: ${args.seconds} s mono take at ${BASE_RATE} Hz through ${design.name} (decoded audio ${decodedMiB.toFixed(1)} MiB)\n`);
+
+  const results: FactorResult[] = [];
+  for (const oversample of args.factors) {
+    const chain = buildChain(design, { sampleRate: BASE_RATE, oversample });
+    renderChannel(chain, take.volts.subarray(0, BASE_RATE)); // warm up the JIT
+    const seconds = timeIt(() => renderChannel(chain, take.volts));
+    results.push({
+      oversample,
+      realTime: args.seconds / seconds,
+      nsPerOversampledSample: (seconds * 1e9) / (take.volts.length * oversample),
+      peakRssMiB: process.resourceUsage().maxRSS / 1024,
+      ...clipperFidelity(design, oversample),
+    });
+  }
+
+  process.stdout.write(
+    formatRows(
+      ['oversample', 'x real time', 'ns/oversampled sample', 'peak RSS MiB', 'clipper error dB', 'harmonic delta dB', 'clipper speed vs Newton'],
+      results.map((r) => [
+        `${r.oversample}x`,
+        r.realTime.toFixed(1),
+        r.nsPerOversampledSample.toFixed(1),
+        r.peakRssMiB.toFixed(0),
+        r.clipperWaveformErrorDb.toFixed(1),
+        r.clipperHarmonicDeltaDb.toFixed(4),
+        `${r.clipperSpeedupVsNewton.toFixed(1)}x`,
+      ]),
+    ),
+  );
+  const at8 = results.find((r) => r.oversample === 8);
+  if (at8) {
+    const verdict = (ok: boolean): string => (ok ? 'met' : 'NOT met');
+    process.stdout.write(
+      `Targets at 8x: >= ${TARGET_REAL_TIME_AT_8X}x real time: ${verdict(at8.realTime >= TARGET_REAL_TIME_AT_8X)}; ` +
+        `clipper error <= ${TARGET_WAVEFORM_ERROR_DB} dB: ${verdict(at8.clipperWaveformErrorDb <= TARGET_WAVEFORM_ERROR_DB)}; ` +
+        `harmonics within ${TARGET_HARMONIC_DELTA_DB} dB: ${verdict(at8.clipperHarmonicDeltaDb <= TARGET_HARMONIC_DELTA_DB)}\n`,
+    );
+  }
+  if (args.json) await writeFileAtomic(args.json, `${JSON.stringify({ seconds: args.seconds, sampleRate: BASE_RATE, design: design.name, results }, null, 2)}\n`);
+}
+
+await main();

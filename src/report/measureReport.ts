@@ -1,0 +1,147 @@
+/** JSON and HTML output of the `measure` bench. */
+import { assertNotAnInput } from '../audio/atomicWrite.js';
+import type { MeasureReport } from '../analysis/measureDesign.js';
+import { buildHtmlReport, type HtmlSection } from './html.js';
+import { renderLinePlotSvg, renderStemPlotSvg, type PlotRule } from './plots.js';
+import { writeHtmlReport, writeJsonReport, type NamedSvg } from './writeReports.js';
+
+export async function writeMeasureJson(path: string, report: MeasureReport, inputs: string[]): Promise<void> {
+  assertNotAnInput(path, inputs);
+  await writeJsonReport(path, report);
+}
+
+async function measurePlots(report: MeasureReport): Promise<NamedSvg[]> {
+  const onsetRules: PlotRule[] = (['1', '3', '10'] as const).flatMap((key) => {
+    const volts = report.onset[key];
+    return volts === null ? [] : [{ x: volts, label: `${key} %` }];
+  });
+  return [
+    {
+      name: 'harmonics',
+      svg: await renderStemPlotSvg({
+        title: `Harmonics at ${report.freqHz.toFixed(0)} Hz, ${report.levelVolts} V peak in`,
+        xLabel: 'frequency (Hz)',
+        yLabel: 'level (dBc)',
+        baseline: -140,
+        yDomain: [-140, 0],
+        stems: report.harmonics.map((h) => ({ x: h.hz, y: Math.max(-140, h.dbc), label: String(h.order) })),
+      }),
+    },
+    {
+      name: 'thd-by-level',
+      svg: await renderLinePlotSvg({
+        title: 'THD against input level',
+        xLabel: 'input level (V peak)',
+        yLabel: 'THD (%)',
+        xScale: 'log',
+        yScale: 'log',
+        series: [{ name: 'THD', points: report.thdByLevel.map((p) => ({ x: p.volts, y: p.thdPercent })) }],
+        rules: onsetRules,
+      }),
+    },
+    {
+      name: 'response',
+      svg: await renderLinePlotSvg({
+        title: 'Small-signal frequency response (magnitude)',
+        xLabel: 'frequency (Hz)',
+        yLabel: 'gain (dB)',
+        xScale: 'log',
+        series: [
+          { name: 'predicted', points: report.response.map((p) => ({ x: p.hz, y: p.db })) },
+          { name: 'measured', points: report.responseMeasured.map((p) => ({ x: p.hz, y: p.db })) },
+        ],
+      }),
+    },
+    {
+      name: 'phase',
+      svg: await renderLinePlotSvg({
+        title: 'Small-signal frequency response (phase)',
+        xLabel: 'frequency (Hz)',
+        yLabel: 'phase (degrees)',
+        xScale: 'log',
+        series: [
+          { name: 'predicted', points: report.response.map((p) => ({ x: p.hz, y: p.deg })) },
+          { name: 'measured', points: report.responseMeasured.map((p) => ({ x: p.hz, y: p.deg })) },
+        ],
+      }),
+    },
+    {
+      name: 'transfer',
+      svg: await renderLinePlotSvg({
+        title: 'Static transfer curve',
+        xLabel: 'input (V)',
+        yLabel: 'output (V)',
+        series: [{ name: 'vout', points: report.transfer.map((p) => ({ x: p.vin, y: p.vout })) }],
+      }),
+    },
+  ];
+}
+
+function fmt(value: number | null, digits: number, unit: string): string {
+  return value === null ? 'not reached' : `${value.toFixed(digits)} ${unit}`;
+}
+
+export async function writeMeasureHtml(path: string, report: MeasureReport, inputs: string[]): Promise<void> {
+  assertNotAnInput(path, inputs);
+  const plots = await measurePlots(report);
+  const figure = (name: string): { svg: string } => ({ svg: plots.find((p) => p.name === name)?.svg ?? '' });
+  const sections: HtmlSection[] = [
+    {
+      heading: 'Summary',
+      tables: [
+        {
+          columns: ['figure', 'value'],
+          rows: [
+            ['THD', `${report.thdPercent.toPrecision(4)} %`],
+            ['THD+N', `${report.thdnPercent.toPrecision(4)} %`],
+            ['small-signal gain', `${report.gainDb.toFixed(2)} dB`],
+            ['maximum output swing', `${report.maxOutputVolts.toFixed(3)} V`],
+            ['THD 1 % / 3 % / 10 % at input', [report.onset['1'], report.onset['3'], report.onset['10']].map((v) => fmt(v, 4, 'V')).join(' / ')],
+            ['strongest alias', `${report.aliasDbc.toFixed(1)} dBc at ${report.aliasHz.toFixed(0)} Hz`],
+          ],
+        },
+      ],
+    },
+    {
+      heading: 'Harmonics',
+      tables: [
+        {
+          columns: ['order', 'Hz', 'dBc', 'volts'],
+          rows: report.harmonics.map((h) => [String(h.order), h.hz.toFixed(1), h.dbc.toFixed(2), h.volts.toExponential(3)]),
+          numericColumns: [0, 1, 2, 3],
+        },
+      ],
+      figures: [figure('harmonics')],
+    },
+    { heading: 'THD against level', figures: [figure('thd-by-level')] },
+    {
+      heading: 'Frequency response',
+      paragraphs: [
+        report.responseDisagreement.length === 0
+          ? 'Predicted (stage models) and measured (stepped sines at 1 mV through the full model) agree within 0.1 dB.'
+          : `Predicted and measured differ by more than 0.1 dB at ${report.responseDisagreement.map((d) => `${d.hz.toFixed(0)} Hz`).join(', ')}.`,
+      ],
+      figures: [figure('response'), figure('phase')],
+    },
+    { heading: 'Transfer curve', figures: [figure('transfer')] },
+  ];
+  if (report.aliasByOversample.length > 1) {
+    sections.push({
+      heading: 'Aliasing by oversampling factor',
+      tables: [
+        {
+          columns: ['factor', 'alias dBc', 'at Hz'],
+          rows: report.aliasByOversample.map((a) => [String(a.oversample), a.aliasDbc.toFixed(1), a.aliasHz.toFixed(0)]),
+          numericColumns: [0, 1, 2],
+        },
+      ],
+    });
+  }
+  const html = buildHtmlReport({
+    title: `clipbench measurement: ${report.design}`,
+    subtitle: `${report.freqHz.toFixed(1)} Hz test tone, ${report.levelVolts} V peak, ${report.sampleRate} Hz, oversampling ${report.oversample}x`,
+    sections,
+    footer: 'Written by clipbench measure. Renders and test tones can be loud: start playback at a low volume.',
+  });
+  await writeHtmlReport(path, html, plots);
+}
