@@ -52,7 +52,7 @@ function requirePositiveVolts(volts: number, what: string): void {
  * Converts digital samples to volts. `sourceName` (e.g. the file path) names the take in errors.
  * Input-peak mode refuses a silent take, which has no peak to scale.
  */
-export function toVolts(channels: Float32Array[], scale: CalibrationScale, sourceName = 'take'): CalibratedTake {
+export function toVolts(channels: Float32Array[], scale: CalibrationScale, sourceName?: string): CalibratedTake {
   const digitalPeak = peakOf(channels);
   let voltsPerFullScale: number;
   if ('fullScaleVolts' in scale) {
@@ -61,7 +61,8 @@ export function toVolts(channels: Float32Array[], scale: CalibrationScale, sourc
   } else {
     requirePositiveVolts(scale.inputPeakVolts, 'input peak');
     if (digitalPeak === 0) {
-      throw new UserError(`${sourceName}: take is silent (all samples 0), cannot scale it to an input peak of ${scale.inputPeakVolts} V`);
+      const where = sourceName === undefined ? '' : `${sourceName}: `;
+      throw new UserError(`${where}take is silent (all samples 0), cannot scale it to an input peak of ${scale.inputPeakVolts} V`);
     }
     voltsPerFullScale = scale.inputPeakVolts / digitalPeak;
   }

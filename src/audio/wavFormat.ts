@@ -42,3 +42,6 @@ export const MAX_CHANNELS = 2;
 export function pcmFullScale(bits: number): number {
   return 2 ** (bits - 1);
 }
+
+/** Largest finite IEEE 754 binary32 value; 32-bit float samples must stay within it. */
+export const FLOAT32_MAX = 3.4028234663852886e38;

@@ -9,7 +9,7 @@
  */
 import { readFile } from 'node:fs/promises';
 import { UserError } from '../errors.js';
-import { pcmFullScale, type WavSampleFormat } from './wavFormat.js';
+import { FLOAT32_MAX, pcmFullScale, type WavSampleFormat } from './wavFormat.js';
 import { parseWavLayout, type WavLayout } from './wavHeader.js';
 
 export type { WavSampleFormat } from './wavFormat.js';
@@ -94,8 +94,6 @@ function decodeChannel(view: DataView, layout: WavLayout, channel: number, out: 
       return;
   }
 }
-
-const FLOAT32_MAX = 3.4028234663852886e38;
 
 /**
  * Reports the first frame (0-based) holding NaN, +-Infinity, or (in a 64-bit file) a value beyond the

@@ -4,21 +4,25 @@
  * PCM: code = round(x * 2^(bits-1)) (Math.round: nearest, halves up), clipped to
  * [-2^(bits-1), 2^(bits-1) - 1]; no dither, so the same samples always give the same bytes.
  */
+import { UserError } from '../errors.js';
 import { writeFileAtomic } from './atomicWrite.js';
-import { pcmFullScale, WAVE_FORMAT_IEEE_FLOAT, WAVE_FORMAT_PCM } from './wavFormat.js';
+import { FLOAT32_MAX, pcmFullScale, WAVE_FORMAT_IEEE_FLOAT, WAVE_FORMAT_PCM } from './wavFormat.js';
 
 export type WavOutputBits = '16' | '24' | '32f';
 
 const HEADER_BYTES = 44;
 
 export function encodeWav(channels: Float32Array[] | Float64Array[], sampleRate: number, bits: WavOutputBits): Uint8Array {
-  validateEncodeArguments(channels, sampleRate);
+  validateEncodeArguments(channels, sampleRate, bits);
   const channelCount = channels.length;
   const frames = channels[0].length;
   const bytesPerSample = bits === '16' ? 2 : bits === '24' ? 3 : 4;
   const blockAlign = channelCount * bytesPerSample;
   const dataBytes = frames * blockAlign;
   const padBytes = dataBytes & 1; // RIFF chunks are padded to even length
+  if (HEADER_BYTES - 8 + dataBytes + padBytes > 0xffffffff) {
+    throw new UserError(`render too long for a WAV file: ${dataBytes} bytes of audio exceed the 4 GiB RIFF limit; render shorter takes`);
+  }
   const bytes = new Uint8Array(HEADER_BYTES + dataBytes + padBytes);
   const view = new DataView(bytes.buffer);
   writeAscii(bytes, 0, 'RIFF');
@@ -55,15 +59,19 @@ export async function writeWavFile(
 }
 
 /** Programming errors, not user errors: the caller's samples come from our own stages. */
-function validateEncodeArguments(channels: Float32Array[] | Float64Array[], sampleRate: number): void {
+function validateEncodeArguments(channels: Float32Array[] | Float64Array[], sampleRate: number, bits: WavOutputBits): void {
   if (channels.length === 0 || channels.length > 0xffff) throw new RangeError(`encodeWav: ${channels.length} channels`);
   if (!Number.isInteger(sampleRate) || sampleRate <= 0) throw new RangeError(`encodeWav: sample rate ${sampleRate} Hz`);
   const frames = channels[0].length;
+  // PCM clips any finite value at full scale; a 32-bit float file holds finite values up to FLOAT32_MAX.
+  const largestMagnitude = bits === '32f' ? FLOAT32_MAX : Number.MAX_VALUE;
   for (let channel = 0; channel < channels.length; channel++) {
     const samples = channels[channel];
     if (samples.length !== frames) throw new RangeError(`encodeWav: channel ${channel + 1} has ${samples.length} frames, expected ${frames}`);
     for (let i = 0; i < frames; i++) {
-      if (!Number.isFinite(samples[i])) throw new RangeError(`encodeWav: non-finite sample at frame ${i}, channel ${channel + 1}`);
+      if (!(Math.abs(samples[i]) <= largestMagnitude)) {
+        throw new RangeError(`encodeWav: sample ${samples[i]} at frame ${i}, channel ${channel + 1} cannot be written as ${bits}-bit`);
+      }
     }
   }
 }

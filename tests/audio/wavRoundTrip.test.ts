@@ -103,7 +103,8 @@ describe('full-scale clipping and determinism', () => {
   });
 
   test('non-finite samples are refused by the writer', () => {
-    expect(() => encodeWav([Float64Array.from([0, Number.NaN])], 48_000, '16')).toThrow(/non-finite sample at frame 1/);
+    expect(() => encodeWav([Float64Array.from([0, Number.NaN])], 48_000, '16')).toThrow(/NaN at frame 1/);
+    expect(() => encodeWav([Float64Array.from([1e39])], 48_000, '32f')).toThrow(/1e\+39 at frame 0/); // beyond binary32 (IEEE 754)
   });
 });
 
