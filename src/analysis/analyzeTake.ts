@@ -182,7 +182,7 @@ export function analyzeTake(wav: DecodedWav, options: AnalyzeOptions = {}): Anal
     durationSeconds: frames / sampleRate,
     peakDbfs,
     rmsDbfs,
-    truePeakDbfs: finiteOrNull(truePeakDb(channels)),
+    truePeakDbfs: finiteOrNull(truePeakDb(channels, sampleRate)),
     lufs: finiteOrNull(integratedLoudness(channels, sampleRate)),
     crestDb: peakDbfs !== null && rmsDbfs !== null ? peakDbfs - rmsDbfs : null,
     toneSource,

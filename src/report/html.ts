@@ -58,7 +58,7 @@ footer { margin-top: 3em; color: #777; font-size: 0.85em; }
 `;
 
 function assertPlainSvg(svg: string): void {
-  if (!/^\s*<svg[\s>/]/.test(svg) || /<script|<foreignObject|<[^>]*\son\w+\s*=/i.test(svg)) {
+  if (!/^\s*<svg[\s>/]/.test(svg) || /<script|<foreignObject|<[^>]*\son\w+\s*=\s*["']/i.test(svg)) {
     throw new Error('html report: figure is not plain SVG markup from the plot renderer');
   }
 }
