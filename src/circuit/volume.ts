@@ -4,7 +4,7 @@
  */
 import { analog, bilinearTransform, type AnalogTransferFunction, type DigitalTransferFunction } from '../dsp/bilinear.js';
 import { UserError } from '../errors.js';
-import { taperFraction } from '../design/taper.js';
+import { potFraction } from '../design/taper.js';
 import type { CircuitContext, VolumeStage } from '../design/types.js';
 import type { Processor } from './processor.js';
 
@@ -13,7 +13,7 @@ export function volumeStageSmallSignal(spec: VolumeStage, position: number): Ana
   if (!(position >= 0 && position <= 1)) {
     throw new UserError(`stage "${spec.id}": knob "${spec.knob}" position must be between 0 and 1, got ${position}`);
   }
-  return analog([taperFraction(spec.taper, spec.reverse ? 1 - position : position)], [1]);
+  return analog([potFraction(spec.taper, position, spec.reverse)], [1]);
 }
 
 export function designVolumeStage(spec: VolumeStage, position: number, ctx: CircuitContext): DigitalTransferFunction {
