@@ -42,3 +42,19 @@ export function formatRows(titles: readonly string[], rows: readonly (readonly s
   }));
   return formatTable({ columns, rows });
 }
+
+/** A cell that reads as a number (or the missing-value mark) is right-aligned by `formatRows`. */
+const NUMERIC_CELL = /^([-+]?(\d|\.\d)|n\/a$)/;
+
+/**
+ * Table from header titles and rows of cells; columns whose cells all read as numbers are
+ * right-aligned, the others left-aligned.
+ */
+export function formatRows(headers: readonly string[], rows: readonly (readonly string[])[]): string {
+  const columns = headers.map((title, i) => {
+    const cells = rows.map((row) => row[i] ?? '').filter((cell) => cell !== '');
+    const numeric = cells.length > 0 && cells.every((cell) => NUMERIC_CELL.test(cell));
+    return { title, align: numeric ? ('right' as const) : ('left' as const) };
+  });
+  return formatTable({ columns, rows });
+}

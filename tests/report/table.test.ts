@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { formatTable, formatValue, MISSING_VALUE } from '../../src/report/table.js';
+import { formatRows, formatTable, formatValue, MISSING_VALUE } from '../../src/report/table.js';
 
 describe('formatTable', () => {
   it('pads columns, right-aligns numbers and draws a rule under the header', () => {
@@ -25,5 +25,15 @@ describe('formatTable', () => {
     expect(formatValue(null, 2, 'dB')).toBe(MISSING_VALUE);
     expect(formatValue(Number.NEGATIVE_INFINITY, 2)).toBe(MISSING_VALUE);
     expect(formatValue(-3.14159, 2, 'dB')).toBe('-3.14 dB');
+  });
+});
+
+describe('formatRows', () => {
+  it('right-aligns the columns whose cells are all numbers', () => {
+    const text = formatRows(['order', 'name', 'dBc'], [
+      ['2', 'second', '-20.0'],
+      ['10', 'tenth', 'n/a'],
+    ]);
+    expect(text.split('\n')).toEqual(['order  name    dBc', '-----  ------  -----', '    2  second  -20.0', '   10  tenth     n/a', '']);
   });
 });
