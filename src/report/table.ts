@@ -33,16 +33,6 @@ export function formatTable(table: TextTable): string {
   return [header, rule, ...table.rows.map(line)].join('\n') + '\n';
 }
 
-/** Shorthand: a table from column titles (numbers right-aligned by content) and string rows. */
-export function formatRows(titles: readonly string[], rows: readonly (readonly string[])[]): string {
-  const numeric = /^[-+]?\d/;
-  const columns = titles.map((title, i) => ({
-    title,
-    align: rows.length > 0 && rows.every((row) => numeric.test(row[i] ?? '')) ? ('right' as const) : ('left' as const),
-  }));
-  return formatTable({ columns, rows });
-}
-
 /** A cell that reads as a number (or the missing-value mark) is right-aligned by `formatRows`. */
 const NUMERIC_CELL = /^([-+]?(\d|\.\d)|n\/a$)/;
 

@@ -34,6 +34,6 @@ describe('formatRows', () => {
       ['2', 'second', '-20.0'],
       ['10', 'tenth', 'n/a'],
     ]);
-    expect(text.split('\n')).toEqual(['order  name    dBc', '-----  ------  -----', '    2  second  -20.0', '   10  tenth     n/a', '']);
+    expect(text.split('\n')).toEqual(['order  name      dBc', '-----  ------  -----', '    2  second  -20.0', '   10  tenth     n/a', '']);
   });
 });
