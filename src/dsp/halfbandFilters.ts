@@ -39,8 +39,10 @@ export function createHalfbandInterpolator(design: HalfbandDesign, maxInputLengt
       const last = 2 * halfArm - 1;
       const centre = halfArm - 1;
       let n = 0;
-      // Four outputs at a time: four independent sums share each tap load. Every output is summed
-      // in the same order as in the one-at-a-time tail, so results do not depend on block size.
+      // Four outputs at a time: four independent sums share each tap. Tap t of outputs n..n+3 reads
+      // x[n - t .. n + 3 - t] and x[n - last + t .. n + 3 - last + t]; both windows slide by one
+      // sample per tap, so each tap loads two new samples and keeps the rest in locals. Every output
+      // is summed in the same order as in the one-at-a-time tail: results do not depend on block size.
       for (; n + 4 <= count; n += 4) {
         const newest = historyLength + n;
         const oldest = newest - last;
@@ -48,14 +50,28 @@ export function createHalfbandInterpolator(design: HalfbandDesign, maxInputLengt
         let acc1 = 0;
         let acc2 = 0;
         let acc3 = 0;
+        let hi0 = 0;
+        let hi1 = buffer[newest + 1];
+        let hi2 = buffer[newest + 2];
+        let hi3 = buffer[newest + 3];
+        let lo0 = buffer[oldest];
+        let lo1 = buffer[oldest + 1];
+        let lo2 = buffer[oldest + 2];
+        let lo3 = 0;
         for (let t = 0; t < halfArm; t++) {
           const c = taps[t];
-          const hi = newest - t;
-          const lo = oldest + t;
-          acc0 += c * (buffer[hi] + buffer[lo]);
-          acc1 += c * (buffer[hi + 1] + buffer[lo + 1]);
-          acc2 += c * (buffer[hi + 2] + buffer[lo + 2]);
-          acc3 += c * (buffer[hi + 3] + buffer[lo + 3]);
+          hi0 = buffer[newest - t];
+          lo3 = buffer[oldest + t + 3];
+          acc0 += c * (hi0 + lo0);
+          acc1 += c * (hi1 + lo1);
+          acc2 += c * (hi2 + lo2);
+          acc3 += c * (hi3 + lo3);
+          hi3 = hi2;
+          hi2 = hi1;
+          hi1 = hi0;
+          lo0 = lo1;
+          lo1 = lo2;
+          lo2 = lo3;
         }
         const o = outputOffset + 2 * n;
         const delayed = newest - centre;
@@ -108,7 +124,8 @@ export function createHalfbandDecimator(
     run(count: number, output: Float64Array, outputOffset: number): void {
       const start = historyLength - extraDelay;
       let n = 0;
-      // Four outputs at a time, summed in the same order as the one-at-a-time tail (see above).
+      // Four outputs at a time with sliding windows, as in the interpolator (here the windows step by
+      // two input samples per tap), summed in the same order as the one-at-a-time tail.
       for (; n + 4 <= count; n += 4) {
         const newest = start + 2 * n;
         const oldest = newest - span;
@@ -116,14 +133,28 @@ export function createHalfbandDecimator(
         let acc1 = 0.5 * buffer[newest + 2 - delay];
         let acc2 = 0.5 * buffer[newest + 4 - delay];
         let acc3 = 0.5 * buffer[newest + 6 - delay];
+        let hi0 = 0;
+        let hi1 = buffer[newest + 2];
+        let hi2 = buffer[newest + 4];
+        let hi3 = buffer[newest + 6];
+        let lo0 = buffer[oldest];
+        let lo1 = buffer[oldest + 2];
+        let lo2 = buffer[oldest + 4];
+        let lo3 = 0;
         for (let t = 0; t < halfArm; t++) {
           const c = taps[t];
-          const hi = newest - 2 * t;
-          const lo = oldest + 2 * t;
-          acc0 += c * (buffer[hi] + buffer[lo]);
-          acc1 += c * (buffer[hi + 2] + buffer[lo + 2]);
-          acc2 += c * (buffer[hi + 4] + buffer[lo + 4]);
-          acc3 += c * (buffer[hi + 6] + buffer[lo + 6]);
+          hi0 = buffer[newest - 2 * t];
+          lo3 = buffer[oldest + 2 * t + 6];
+          acc0 += c * (hi0 + lo0);
+          acc1 += c * (hi1 + lo1);
+          acc2 += c * (hi2 + lo2);
+          acc3 += c * (hi3 + lo3);
+          hi3 = hi2;
+          hi2 = hi1;
+          hi1 = hi0;
+          lo0 = lo1;
+          lo1 = lo2;
+          lo2 = lo3;
         }
         const o = outputOffset + n;
         output[o] = acc0;
