@@ -45,9 +45,9 @@ function describeTone(report: AnalyzeReport): string {
 }
 
 export function formatAnalyzeSummary(report: AnalyzeReport): string {
-  const parts = [`${describeTake(report)}\n`, formatRows(['level', 'value'], levelRows(report)), `\n${describeTone(report)}\n`];
+  const parts = [`${describeTake(report)}\n\n`, formatRows(['level', 'value'], levelRows(report)), `\n${describeTone(report)}\n`];
   if (report.toneSource !== 'none') {
-    parts.push(formatRows(['tone', 'value'], toneRows(report)));
+    parts.push('\n', formatRows(['tone', 'value'], toneRows(report)));
     if (report.harmonics.length > 0) parts.push('\n', formatRows(['order', 'Hz', 'dBc'], harmonicRows(report)));
   }
   return parts.join('');

@@ -64,7 +64,8 @@ function axisEncoding(field: string, label: string, scale: AxisScale | undefined
     field,
     type: 'quantitative' as const,
     title: label,
-    scale: { type: scale ?? 'linear', ...(domain ? { domain: [...domain] } : { zero: false }), nice: false },
+    // `zero` only applies to linear scales (vega-lite warns if it is set on a log scale).
+    scale: { type: scale ?? 'linear', ...(domain ? { domain: [...domain] } : scale === 'log' ? {} : { zero: false }), nice: false },
   };
 }
 
