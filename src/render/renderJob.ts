@@ -14,6 +14,7 @@ import type { OversampleFactor } from '../circuit/chain.js';
 import type { RenderProgress } from '../circuit/renderChannel.js';
 import type { CalibrationScale } from '../audio/calibration.js';
 import { renderTake, type RenderSummary } from './renderTake.js';
+import { applyLoudnessMatch, type LoudnessMatchReport, type LoudnessMatchTarget } from './loudnessMatch.js';
 
 export interface RenderJob {
   designPath: string;
@@ -26,12 +27,19 @@ export interface RenderJob {
   oversample: OversampleFactor;
   scale: CalibrationScale;
   bits: WavOutputBits;
+  /**
+   * Loudness-match the written file (`compare`): gain to the target loudness, held under the
+   * sample-peak ceiling. Without it the file keeps the circuit's calibrated level (`render`).
+   */
+  match?: LoudnessMatchTarget;
 }
 
 export interface RenderJobResult {
   wavPath: string;
   sidecarPath: string;
   summary: RenderSummary;
+  /** Present when the job asked for loudness matching. */
+  match?: LoudnessMatchReport;
 }
 
 /** Keep letters, digits, dot, dash and underscore; never a path separator or "..". */
@@ -62,12 +70,15 @@ export async function runRenderJob(job: RenderJob, onProgress?: RenderProgress):
 
   const rendered = renderTake(design, wav, { oversample: job.oversample, scale: job.scale, onProgress });
   const fileChannels = fromVolts(rendered.volts, rendered.summary.voltsAtFullScale);
+  // `summary.output` stays the circuit's own level; `loudnessMatch` tells the gain the file got.
+  const match = job.match ? applyLoudnessMatch(fileChannels, wav.sampleRate, job.match) : undefined;
   await writeWavFile(wavPath, fileChannels, wav.sampleRate, job.bits);
   const sidecar = {
     ...rendered.summary,
     output: { ...rendered.summary.output, file: path.basename(wavPath), bits: job.bits },
     overrides: job.overrides,
+    ...(match ? { loudnessMatch: match } : {}),
   };
   await writeFileAtomic(sidecarPath, `${JSON.stringify(sidecar, null, 2)}\n`);
-  return { wavPath, sidecarPath, summary: rendered.summary };
+  return { wavPath, sidecarPath, summary: rendered.summary, ...(match ? { match } : {}) };
 }

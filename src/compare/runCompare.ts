@@ -1,0 +1,216 @@
+/**
+ * `compare`: render every variant of a design for every take (worker threads), loudness-match the
+ * renders and the dry take, measure what was written, and write `summary.json` and the listening
+ * page `index.html` into the output folder. A failed variant is recorded and the rest go on.
+ */
+import { mkdir } from 'node:fs/promises';
+import path from 'node:path';
+import { UserError } from '../errors.js';
+import { readWavFile, type DecodedWav } from '../audio/wavRead.js';
+import type { CalibrationScale } from '../audio/calibration.js';
+import type { WavOutputBits } from '../audio/wavWrite.js';
+import { assertNotAnInput, writeFileAtomic } from '../audio/atomicWrite.js';
+import { loadPartsLibrary, type PartsLibrary } from '../design/parts.js';
+import { readDesignFile } from '../design/parseDesign.js';
+import { resolveDesign } from '../design/resolve.js';
+import type { Design } from '../design/types.js';
+import type { OversampleFactor } from '../circuit/chain.js';
+import { referenceThdPercent } from '../analysis/referenceTone.js';
+import { DEFAULT_MEASURE_OPTIONS } from '../analysis/measureDesign.js';
+import type { SpectrumPoint } from '../analysis/analyzeTake.js';
+import { toJsonText } from '../report/writeReports.js';
+import { sanitizeFileStem, type RenderJob } from '../render/renderJob.js';
+import { runRenderJobs, type JobOutcome } from '../render/workerPool.js';
+import type { LoudnessMatchReport, LoudnessMatchTarget } from '../render/loudnessMatch.js';
+import { writeDryTake } from './dryTake.js';
+import { measureWrittenTake } from './takeMetrics.js';
+import { buildListeningPage } from './listeningPage.js';
+import type { CompareEntry, CompareSummary, CompareTake, CompareVariantInfo } from './summary.js';
+import type { Variant } from './variants.js';
+
+export interface CompareOptions {
+  designPath: string;
+  partsPath?: string;
+  inputPaths: string[];
+  outputDir: string;
+  variants: Variant[];
+  /** Overrides for every variant (`--set`), applied before each variant's own. */
+  commonOverrides: string[];
+  /** Null keeps each render's own level (`--no-match`). */
+  match: LoudnessMatchTarget | null;
+  oversample: OversampleFactor;
+  scale: CalibrationScale;
+  bits: WavOutputBits;
+  threads?: number;
+  onProgress?: (phase: 'rendering' | 'measuring', fraction: number) => void;
+}
+
+export interface CompareResult {
+  summary: CompareSummary;
+  summaryPath: string;
+  pagePath: string;
+}
+
+/** Longest take name kept in output file names (the variant label follows it). */
+const TAKE_NAME_CHARS = 60;
+
+interface CheckedVariant {
+  variant: Variant;
+  number: number;
+  overrides: string[];
+  design: Design<number> | null;
+  error?: string;
+}
+
+/** Output stems per take, unique even when two inputs share a file name. */
+function takeNames(inputPaths: readonly string[]): string[] {
+  const used = new Set<string>();
+  return inputPaths.map((inputPath) => {
+    const base = sanitizeFileStem(path.basename(inputPath, path.extname(inputPath))).slice(0, TAKE_NAME_CHARS);
+    let name = base;
+    for (let n = 2; used.has(name); n++) name = `${base}-${n}`;
+    used.add(name);
+    return name;
+  });
+}
+
+function variantStem(takeName: string, number: number, label: string): string {
+  return sanitizeFileStem(`${takeName}--v${String(number).padStart(2, '0')}-${label}`);
+}
+
+async function checkVariant(options: CompareOptions, parts: PartsLibrary, variant: Variant, number: number): Promise<CheckedVariant> {
+  const overrides = [...options.commonOverrides, ...variant.overrides];
+  try {
+    const design = resolveDesign(await readDesignFile(options.designPath, parts, overrides));
+    return { variant, number, overrides, design };
+  } catch (error) {
+    if (!(error instanceof UserError)) throw error;
+    return { variant, number, overrides, design: null, error: error.message };
+  }
+}
+
+function entryFromMatch(match: LoudnessMatchReport | null | undefined): Pick<CompareEntry, 'loudnessBeforeLufs' | 'gainDb' | 'ceilingLimited'> {
+  return { loudnessBeforeLufs: match?.loudnessBeforeLufs ?? null, gainDb: match?.gainDb ?? 0, ceilingLimited: match?.ceilingLimited ?? false };
+}
+
+export async function runCompare(options: CompareOptions): Promise<CompareResult> {
+  if (options.variants.length === 0) throw new UserError('compare: nothing to compare; give --vary key=v1,v2,... or --variants file.json');
+  if (options.inputPaths.length === 0) throw new UserError('compare: no input takes given');
+  const parts = loadPartsLibrary(options.partsPath);
+  // The design as written (plus --set) must be valid: otherwise every variant would fail alike.
+  const base = resolveDesign(await readDesignFile(options.designPath, parts, options.commonOverrides));
+  const takes: DecodedWav[] = [];
+  for (const inputPath of options.inputPaths) takes.push(await readWavFile(inputPath));
+  const names = takeNames(options.inputPaths);
+  const inputs = [options.designPath, ...options.inputPaths, ...(options.partsPath ? [options.partsPath] : [])];
+  const summaryPath = path.join(options.outputDir, 'summary.json');
+  const pagePath = path.join(options.outputDir, 'index.html');
+  for (const output of [summaryPath, pagePath]) assertNotAnInput(output, inputs);
+  await mkdir(options.outputDir, { recursive: true });
+
+  const checked: CheckedVariant[] = [];
+  for (const [index, variant] of options.variants.entries()) checked.push(await checkVariant(options, parts, variant, index + 1));
+  const runnable = checked.filter((c) => c.design !== null);
+  const jobs: RenderJob[] = [];
+  const jobIndex = new Map<string, number>();
+  names.forEach((takeName, takeIndex) => {
+    for (const c of runnable) {
+      jobIndex.set(`${takeIndex}:${c.number}`, jobs.length);
+      jobs.push({
+        designPath: options.designPath,
+        partsPath: options.partsPath,
+        overrides: c.overrides,
+        inputPath: options.inputPaths[takeIndex],
+        outputDir: options.outputDir,
+        outputStem: variantStem(takeName, c.number, c.variant.label),
+        oversample: options.oversample,
+        scale: options.scale,
+        bits: options.bits,
+        ...(options.match ? { match: options.match } : {}),
+      });
+    }
+  });
+  const outcomes: JobOutcome[] = jobs.length
+    ? await runRenderJobs(jobs, { threads: options.threads, onProgress: (f) => options.onProgress?.('rendering', f) })
+    : [];
+
+  const steps = runnable.length + takes.length * (checked.length + 1);
+  let stepsDone = 0;
+  const step = (): void => options.onProgress?.('measuring', ++stepsDone / steps);
+  const thdByVariant = new Map<number, number>();
+  for (const c of runnable) {
+    if (c.design) thdByVariant.set(c.number, referenceThdPercent(c.design, options.oversample));
+    step();
+  }
+
+  const failures: string[] = [];
+  const ceilingLimited: string[] = [];
+  const variantInfo: CompareVariantInfo[] = checked.map((c) => ({
+    variant: c.number,
+    label: c.variant.label,
+    overrides: c.variant.overrides,
+    thdPercent: thdByVariant.get(c.number) ?? null,
+    ...(c.error !== undefined ? { error: c.error } : {}),
+  }));
+  for (const c of checked) if (c.error !== undefined) failures.push(`variant ${c.number} "${c.variant.label}": ${c.error}`);
+
+  const spectra = new Map<string, SpectrumPoint[]>();
+  const measured = async (entry: Omit<CompareEntry, 'loudnessLufs' | 'peakDbfs' | 'crestDb' | 'centroidHz'>): Promise<CompareEntry> => {
+    if (entry.file === null) return { ...entry, loudnessLufs: null, peakDbfs: null, crestDb: null, centroidHz: null };
+    const metrics = await measureWrittenTake(path.join(options.outputDir, entry.file));
+    spectra.set(entry.file, metrics.spectrum);
+    const { spectrum: _spectrum, ...figures } = metrics;
+    const loudnessBeforeLufs = options.match ? entry.loudnessBeforeLufs : figures.loudnessLufs;
+    if (entry.ceilingLimited) {
+      ceilingLimited.push(
+        `${entry.file}: held by the ${options.match?.ceilingDbfs} dBFS peak ceiling at ${figures.loudnessLufs?.toFixed(1)} LUFS, quieter than the ${options.match?.targetLufs} LUFS target`,
+      );
+    }
+    return { ...entry, loudnessBeforeLufs, ...figures };
+  };
+
+  const compareTakes: CompareTake[] = [];
+  for (const [takeIndex, wav] of takes.entries()) {
+    const takeName = names[takeIndex];
+    const dryFile = `${takeName}--dry.wav`;
+    assertNotAnInput(path.join(options.outputDir, dryFile), inputs);
+    const dryMatch = await writeDryTake(wav, path.join(options.outputDir, dryFile), options.match, options.bits);
+    const entries: CompareEntry[] = [
+      await measured({ kind: 'dry', variant: 0, label: 'dry', overrides: [], file: dryFile, thdPercent: null, ...entryFromMatch(dryMatch) }),
+    ];
+    step();
+    for (const c of checked) {
+      const common = { kind: 'variant' as const, variant: c.number, label: c.variant.label, overrides: c.variant.overrides, thdPercent: thdByVariant.get(c.number) ?? null };
+      const index = jobIndex.get(`${takeIndex}:${c.number}`);
+      const outcome = index === undefined ? undefined : outcomes[index];
+      if (outcome === undefined || !outcome.ok) {
+        const error = outcome && !outcome.ok ? outcome.message : (c.error ?? 'not rendered');
+        if (outcome && !outcome.ok) failures.push(`variant ${c.number} "${c.variant.label}" on ${options.inputPaths[takeIndex]}: ${error}`);
+        entries.push({ ...common, file: null, ...entryFromMatch(null), loudnessLufs: null, peakDbfs: null, crestDb: null, centroidHz: null, error });
+      } else {
+        entries.push(await measured({ ...common, file: path.basename(outcome.result.wavPath), ...entryFromMatch(outcome.result.match) }));
+      }
+      step();
+    }
+    compareTakes.push({ take: options.inputPaths[takeIndex], name: takeName, sampleRate: wav.sampleRate, channels: wav.channels.length, seconds: wav.frames / wav.sampleRate, entries });
+  }
+
+  const { freqHz, levelVolts, sampleRate } = DEFAULT_MEASURE_OPTIONS;
+  const summary: CompareSummary = {
+    design: base.name,
+    designFile: options.designPath,
+    commonOverrides: options.commonOverrides,
+    loudnessMatch: options.match,
+    referenceTone: { freqHz, levelVolts, sampleRate },
+    oversample: options.oversample,
+    bits: options.bits,
+    calibration: options.scale,
+    variants: variantInfo,
+    takes: compareTakes,
+    ceilingLimited,
+    failures,
+  };
+  await writeFileAtomic(summaryPath, toJsonText(summary));
+  await writeFileAtomic(pagePath, await buildListeningPage(summary, spectra));
+  return { summary, summaryPath, pagePath };
+}
