@@ -2,7 +2,7 @@
  * Kaiser window and Kaiser's empirical design formulas for window-method FIR filters
  * (J. F. Kaiser, "Nonrecursive digital filter design using the I0-sinh window function",
  * Proc. IEEE ISCAS 1974; as given in Oppenheim & Schafer, Discrete-Time Signal Processing,
- * 2nd ed., pp. 474-476). The attenuation A = -20 log10(delta) in dB applies to both bands: the
+ * 2nd ed., pp. 475-476, the pages scipy.signal.kaiserord cites). The attenuation A = -20 log10(delta) in dB applies to both bands: the
  * window method gives the same peak ripple delta in the passband and the stopband.
  */
 
@@ -22,7 +22,7 @@ export function besselI0(x: number): number {
   return sum;
 }
 
-/** Kaiser's beta for a peak ripple of `attenuationDb` dB (O&S eq. for beta, p. 474). */
+/** Kaiser's beta for a peak ripple of `attenuationDb` dB (O&S pp. 475-476). */
 export function kaiserBeta(attenuationDb: number): number {
   const a = attenuationDb;
   if (a > 50) return 0.1102 * (a - 8.7);
@@ -33,7 +33,7 @@ export function kaiserBeta(attenuationDb: number): number {
 /**
  * Filter order N (length N + 1) that Kaiser's formula predicts for `attenuationDb` and a transition
  * band `transitionWidth` wide as a fraction of the sample rate: N = (A - 8) / (2.285 dw),
- * dw = 2 pi transitionWidth (O&S p. 475).
+ * dw = 2 pi transitionWidth (O&S pp. 475-476).
  */
 export function kaiserOrder(attenuationDb: number, transitionWidth: number): number {
   return Math.ceil((attenuationDb - 8) / (2.285 * 2 * Math.PI * transitionWidth));

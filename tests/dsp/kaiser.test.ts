@@ -19,7 +19,7 @@ describe('Kaiser window', () => {
     expect(kaiserBeta(20)).toBe(0);
   });
 
-  it('order grows as (A - 8) / (2.285 * 2 pi * width) (Oppenheim & Schafer, p. 475)', () => {
+  it('order grows as (A - 8) / (2.285 * 2 pi * width) (Oppenheim & Schafer, 2nd ed., pp. 475-476)', () => {
     // A = 65 dB, width 0.024 of the sample rate: (57) / (2.285 * 0.1508) = 165.4 -> 166.
     expect(kaiserOrder(65, 0.024)).toBe(166);
   });
