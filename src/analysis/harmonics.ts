@@ -140,9 +140,9 @@ export function measureHarmonics(signal: Float64Array, sampleRate: number, optio
     searchTo = Math.min(lastBin - LOBE_HALF_WIDTH_BINS, Math.ceil(options.fundamentalHz / binHz + halfWidthBins));
   }
   if (searchTo < searchFrom) {
-    throw new RangeError(
-      `no room to look for a fundamental between bins ${searchFrom} and ${searchTo} (bin width ${binHz.toFixed(3)} Hz)`,
-    );
+    const lowHz = (lowestBin * binHz).toFixed(1);
+    const highHz = ((lastBin - LOBE_HALF_WIDTH_BINS) * binHz).toFixed(0);
+    throw new RangeError(`the fundamental must lie between ${lowHz} Hz and ${highHz} Hz for this signal`);
   }
   const fundamentalBin = interpolatedPeakBin(power, searchFrom, searchTo);
   if (fundamentalBin < 2 * LOBE_HALF_WIDTH_BINS + 1) {

@@ -110,3 +110,14 @@ describe('measureHarmonics', () => {
     expect(report.thdnPercent).toBeLessThan(5e-3); // -86 dB
   });
 });
+
+describe('measureHarmonics input limits', () => {
+  it('names the usable range when a given fundamental is below it', () => {
+    const signal = sumOfSines(48000, SAMPLE_RATE, [{ hz: 1000, amplitude: 0.5 }]);
+    expect(() => measureHarmonics(signal, SAMPLE_RATE, { fundamentalHz: 5 })).toThrow(/between 20\.\d Hz and \d+ Hz/);
+  });
+
+  it('refuses a signal too short to analyse', () => {
+    expect(() => measureHarmonics(new Float64Array(500), SAMPLE_RATE)).toThrow(RangeError);
+  });
+});
