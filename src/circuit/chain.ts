@@ -62,7 +62,7 @@ export function buildChain(design: Design<number>, options: ChainOptions): Chain
     } else {
       segments.push({
         stages: [processor],
-        oversampler: oversampled ? createOversampler(oversample, blockSize) : null,
+        oversampler: oversampled ? createOversampler(oversample, blockSize, sampleRate) : null,
       });
     }
   }

@@ -1,4 +1,4 @@
-import { mkdtempSync, readdirSync, readFileSync, writeFileSync, copyFileSync } from 'node:fs';
+import { copyFileSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
@@ -69,15 +69,18 @@ describe('clipbench render', () => {
   });
 
   it('refuses to overwrite an input and leaves it untouched', () => {
+    // The sidecar of mono.wav rendered through "night-drive" is mono--night-drive.json: make that
+    // the design file itself, in the output folder.
     const trap = path.join(dir, 'trap');
-    runCli(['render', design, monoTake, '-o', trap]); // creates the folder and a first render
-    const victim = path.join(trap, 'victim--night-drive.wav');
-    copyFileSync(monoTake, victim);
+    mkdirSync(trap, { recursive: true });
+    const victim = path.join(trap, 'mono--night-drive.json');
+    copyFileSync(design, victim);
     const before = readFileSync(victim);
-    const result = runCli(['render', design, victim, '-o', trap, '--oversample', '2']);
+    const result = runCli(['render', victim, monoTake, '-o', trap, '--oversample', '2']);
     expect(result.status).not.toBe(0);
     expect(result.stderr).toMatch(/overwrite|input/i);
     expect(readFileSync(victim).equals(before)).toBe(true);
+    expect(readdirSync(trap)).toEqual(['mono--night-drive.json']);
   });
 
   it('reports a missing take in one line without a stack trace and writes nothing', () => {
@@ -111,7 +114,8 @@ describe('clipbench render', () => {
     );
     const out = path.join(dir, 'unity');
     const result = runCli(['render', bufferDesign, monoTake, '-o', out]);
-    expect(result.stderr).toBe('');
+    expect(result.status).toBe(0);
+    expect(result.stderr).not.toMatch(/clipbench:/);
     const input = await readWavFile(monoTake);
     const output = await readWavFile(path.join(out, 'mono--buffer.wav'));
     let err = 0;
