@@ -13,7 +13,7 @@ import { binomialTailProbability } from './binomial.js';
 
 const SCRIPT_BODY = String.raw`
 'use strict';
-var DRIFT_SECONDS = 0.04;
+var DRIFT_SECONDS = 0.025;
 var SEEK_STEP_SECONDS = 2;
 
 function mulberry32(seed) {
