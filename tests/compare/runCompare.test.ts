@@ -1,0 +1,95 @@
+import { existsSync, readdirSync, readFileSync } from 'node:fs';
+import path from 'node:path';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { runCompare, type CompareResult } from '../../src/compare/runCompare.js';
+import { expandVaryMatrix } from '../../src/compare/variants.js';
+import { readWavFile } from '../../src/audio/wavRead.js';
+import { integratedLoudness } from '../../src/dsp/loudness.js';
+import { expectClose } from '../helpers/expectClose.js';
+import { makeTempDir, NIGHT_DRIVE, writeDemoTake } from './compareFixtures.js';
+
+const TARGET_LUFS = -18;
+let dir: string;
+let out: string;
+let result: CompareResult;
+
+beforeAll(async () => {
+  dir = makeTempDir('compare');
+  out = path.join(dir, 'out');
+  const first = await writeDemoTake(dir, 'pluck.wav');
+  const second = await writeDemoTake(dir, 'pluck copy.wav', 1.2);
+  result = await runCompare({
+    designPath: NIGHT_DRIVE,
+    inputPaths: [first, second],
+    outputDir: out,
+    variants: expandVaryMatrix(['clip.diode=1n4148,no-such-diode,1n34a']),
+    commonOverrides: ['drive=0.7'],
+    match: { targetLufs: TARGET_LUFS, ceilingDbfs: -1 },
+    oversample: 2,
+    scale: { fullScaleVolts: 1 },
+    bits: '24',
+    threads: 2,
+  });
+});
+
+describe('runCompare', () => {
+  it('renders every good variant of every take and keeps going past a bad one', () => {
+    const { summary } = result;
+    expect(summary.takes.map((t) => t.name)).toEqual(['pluck', 'pluck_copy']);
+    for (const take of summary.takes) {
+      expect(take.entries.map((e) => e.label)).toEqual(['dry', 'clip.diode=1n4148', 'clip.diode=no-such-diode', 'clip.diode=1n34a']);
+      const [dry, silicon, bad, germanium] = take.entries;
+      expect(dry.kind).toBe('dry');
+      expect(bad.file).toBeNull();
+      expect(bad.error).toMatch(/no-such-diode/);
+      for (const good of [dry, silicon, germanium]) expect(existsSync(path.join(out, good.file ?? 'missing'))).toBe(true);
+    }
+    expect(summary.variants[1].error).toMatch(/unknown diode "no-such-diode"/);
+    expect(summary.failures.some((line) => line.startsWith('variant 2 "clip.diode=no-such-diode"'))).toBe(true);
+    expect(readdirSync(out).filter((name) => name.endsWith('.tmp'))).toEqual([]);
+  });
+
+  it('matches every written file within 0.5 LU of the target unless the ceiling held it, and reports that', async () => {
+    let matched = 0;
+    for (const take of result.summary.takes) {
+      for (const entry of take.entries) {
+        if (entry.file === null) continue;
+        const wav = await readWavFile(path.join(out, entry.file));
+        // Measured independently of the program's report, on the written WAV (BS.1770-4 meter).
+        const lufs = integratedLoudness(wav.channels, wav.sampleRate);
+        let peak = 0;
+        for (const channel of wav.channels) for (const x of channel) peak = Math.max(peak, Math.abs(x));
+        expect(20 * Math.log10(peak)).toBeLessThanOrEqual(-1 + 0.001);
+        if (entry.ceilingLimited) {
+          expect(lufs).toBeLessThan(TARGET_LUFS - 0.5);
+          expectClose(20 * Math.log10(peak), -1, { atol: 0.01 });
+          expect(result.summary.ceilingLimited.some((line) => line.startsWith(`${entry.file}:`))).toBe(true);
+        } else {
+          expectClose(lufs, TARGET_LUFS, { atol: 0.5 });
+          matched++;
+        }
+        expectClose(entry.loudnessLufs ?? NaN, lufs, { atol: 1e-6 });
+      }
+    }
+    expect(matched).toBeGreaterThanOrEqual(4);
+    // The dry pluck has a crest factor above 20 dB: -18 LUFS would need a peak above -1 dBFS.
+    expect(result.summary.takes[0].entries[0].ceilingLimited).toBe(true);
+  });
+
+  it('writes summary.json with the documented keys and no non-finite numbers', () => {
+    const summary = JSON.parse(readFileSync(result.summaryPath, 'utf8'));
+    const entry = summary.takes[0].entries[1];
+    for (const key of ['label', 'overrides', 'file', 'loudnessBeforeLufs', 'gainDb', 'ceilingLimited', 'peakDbfs', 'crestDb', 'thdPercent', 'centroidHz']) {
+      expect(entry).toHaveProperty(key);
+    }
+    expect(entry.overrides).toEqual(['clip.diode=1n4148']);
+    expect(summary.commonOverrides).toEqual(['drive=0.7']);
+    // A clipping stage driven at 0.5 V makes distortion; THD is a percentage, the centroid in band.
+    expect(entry.thdPercent).toBeGreaterThan(0.5);
+    expect(entry.thdPercent).toBeLessThan(100);
+    expect(entry.centroidHz).toBeGreaterThan(20);
+    expect(entry.centroidHz).toBeLessThan(20000);
+    expect(summary.takes[0].entries[0].thdPercent).toBeNull();
+    expect(existsSync(result.pagePath)).toBe(true);
+  });
+});
