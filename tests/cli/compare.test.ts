@@ -1,0 +1,63 @@
+import { existsSync, readFileSync } from 'node:fs';
+import path from 'node:path';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { runCli } from '../helpers/cli.js';
+import { makeTempDir, NIGHT_DRIVE, writeDemoTake } from '../compare/compareFixtures.js';
+
+let dir: string;
+let take: string;
+
+beforeAll(async () => {
+  dir = makeTempDir('compare-cli');
+  take = await writeDemoTake(dir, 'take.wav', 1);
+});
+
+describe('clipbench compare', () => {
+  it('renders the matrix, prints the table and the page, reports the ceiling, exits 0', () => {
+    const out = path.join(dir, 'out');
+    const result = runCli(['compare', NIGHT_DRIVE, take, '--vary', 'clip.diode=1n4148,1n34a', '-o', out, '--oversample', '2', '--threads', '2']);
+    expect(result.stderr).not.toMatch(/internal error/);
+    expect(result.status).toBe(0);
+    expect(result.stdout).toContain('1. clip.diode=1n4148');
+    expect(result.stdout).toContain(`Listening page: ${path.join(out, 'index.html')}`);
+    // The dry pluck's crest factor keeps it under -18 LUFS at a -1 dBFS peak: said on stderr.
+    expect(result.stderr).toMatch(/ceiling: take--dry\.wav: held by the -1 dBFS peak ceiling/);
+    const summary = JSON.parse(readFileSync(path.join(out, 'summary.json'), 'utf8'));
+    expect(summary.loudnessMatch).toEqual({ targetLufs: -18, ceilingDbfs: -1 });
+    expect(summary.takes[0].entries).toHaveLength(3);
+    expect(existsSync(path.join(out, 'take--v02-clip.diode_1n34a.wav'))).toBe(true);
+  });
+
+  it('keeps the circuit level with --no-match (gain 0, loudness as rendered)', () => {
+    const out = path.join(dir, 'raw');
+    const result = runCli(['compare', NIGHT_DRIVE, take, '--vary', 'drive=0.1,0.9', '-o', out, '--oversample', '2', '--no-match']);
+    expect(result.status).toBe(0);
+    const summary = JSON.parse(readFileSync(path.join(out, 'summary.json'), 'utf8'));
+    expect(summary.loudnessMatch).toBeNull();
+    for (const entry of summary.takes[0].entries) {
+      expect(entry.gainDb).toBe(0);
+      expect(entry.loudnessBeforeLufs).toBe(entry.loudnessLufs);
+    }
+    const [, low, high] = summary.takes[0].entries;
+    expect(high.loudnessLufs).toBeGreaterThan(low.loudnessLufs);
+  });
+
+  it('exits non-zero when every variant fails, naming each failure', () => {
+    const result = runCli(['compare', NIGHT_DRIVE, take, '--vary', 'clip.diode=nope1,nope2', '-o', path.join(dir, 'bad'), '--oversample', '2']);
+    expect(result.status).toBe(2);
+    expect(result.stderr).toMatch(/failed: variant 1 "clip.diode=nope1": .*unknown diode "nope1"/);
+    expect(result.stderr).toMatch(/every variant failed/);
+  });
+
+  it('refuses bad inputs with one line', () => {
+    const missing = runCli(['compare', NIGHT_DRIVE, path.join(dir, 'missing.wav'), '--vary', 'drive=0.2,0.8', '-o', path.join(dir, 'x1')]);
+    expect(missing.status).toBe(2);
+    expect(missing.stderr.trim().split('\n')).toEqual([`clipbench: ${path.join(dir, 'missing.wav')}: file not found`]);
+    const noVary = runCli(['compare', NIGHT_DRIVE, take, '-o', path.join(dir, 'x2')]);
+    expect(noVary.status).toBe(2);
+    expect(noVary.stderr).toMatch(/give --vary/);
+    const loud = runCli(['compare', NIGHT_DRIVE, take, '--vary', 'drive=0.2,0.8', '--loudness', 'loud', '-o', path.join(dir, 'x3')]);
+    expect(loud.status).toBe(2);
+    expect(loud.stderr).toMatch(/--loudness: "loud" is not a loudness/);
+  });
+});
