@@ -15,7 +15,6 @@ import type { ConductionMeter } from './conduction.js';
 import { diodeString, validateDiode } from './diode.js';
 import { DiodeNode, designDiodeNode, type DiodeNodeDesign, type DiodeSolverKind } from './diodeNode.js';
 import { networkConductanceAtZero, type DiodeNetwork } from './diodeNodeSolver.js';
-import { limitInputVolts } from './inputLimit.js';
 import type { Processor } from './processor.js';
 
 export interface ClipperDesign {
@@ -83,9 +82,7 @@ export function createClipper(design: ClipperDesign): Processor & ConductionMete
       node.reset();
     },
     process(block: Float64Array): void {
-      const n = block.length;
-      for (let i = 0; i < n; i++) block[i] = limitInputVolts(block[i]) * seriesSiemens;
-      node.process(block);
+      node.process(block, seriesSiemens);
     },
   };
 }

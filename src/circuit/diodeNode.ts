@@ -18,6 +18,7 @@ import type { ConductionMeter } from './conduction.js';
 import { CONDUCTION_FRACTION } from './conduction.js';
 import { voltageAtConductance } from './diode.js';
 import { DiodeNodeSolver, type DiodeNetwork } from './diodeNodeSolver.js';
+import { limitInputVolts } from './inputLimit.js';
 import { buildDiodeNodeTable, tableErrorVolts, type DiodeNodeTable } from './diodeNodeTable.js';
 
 export type DiodeSolverKind = 'newton' | 'table';
@@ -30,7 +31,11 @@ export type DiodeSolverKind = 'newton' | 'table';
  */
 export const TABLE_INTERVALS = 8192;
 export const MAX_TABLE_INTERVALS = 32768;
-/** -120 dB re 1 V: far below the waveform-error target of -60 dB. */
+/**
+ * -120 dB re 1 V. The stable recursion can accumulate a table error by a factor of about
+ * 2 / (1 - rho), rho = (a - G_r) / (a + G_r) the companion's memory, i.e. tens of times at most for
+ * ordinary designs: still far below the -60 dB waveform-error target.
+ */
 export const TABLE_TOLERANCE_VOLTS = 1e-6;
 /** The table covers p up to this many times the largest expected drive current (see pMax). */
 const TABLE_DRIVE_MARGIN = 4;
@@ -47,9 +52,10 @@ export interface DiodeNodeDesign {
 }
 
 /**
- * Precompute a diode node (the table is always built, so a design can run with either solver). `driveAmpsMax` is the largest drive current the stage expects; the table
- * covers p up to TABLE_DRIVE_MARGIN times it plus the capacitor's share at the matching node
- * voltage, and anything beyond is solved by Newton (correct, only slower).
+ * Precompute a diode node; the table is built whatever solver runs it later, so one design serves
+ * both. `driveAmpsMax` is the largest drive current the stage expects; the table covers p up to
+ * TABLE_DRIVE_MARGIN times it plus the capacitor's share at the matching node voltage, and anything
+ * beyond is solved by Newton (correct, only slower).
  */
 export function designDiodeNode(
   network: DiodeNetwork,
@@ -100,6 +106,8 @@ function buildCheckedTable(
 export class DiodeNode implements ConductionMeter {
   conductingSamples = 0;
   countedSamples = 0;
+  /** Samples that went to Newton (outside the table, or no table), since the last reset. */
+  newtonSamples = 0;
 
   private readonly solver: DiodeNodeSolver;
   private readonly step: number; // table grid step in amperes
@@ -134,6 +142,7 @@ export class DiodeNode implements ConductionMeter {
     this.state = this.quiescentState();
     this.conductingSamples = 0;
     this.countedSamples = 0;
+    this.newtonSamples = 0;
     this.solver.reset();
   }
 
@@ -142,21 +151,25 @@ export class DiodeNode implements ConductionMeter {
     return this.solver.fallbacks;
   }
 
-  /** Drive currents (amperes) in, node voltages (volts) out, in place. */
-  process(block: Float64Array): void {
+  /**
+   * Drive in, node voltages (volts) out, in place. The drive current in amperes is
+   * `driveScale` times the block value (the clipper passes volts and 1/R); block values are first
+   * limited to +-MAX_INPUT_VOLTS (inputLimit.ts), off the loop's critical path.
+   */
+  process(block: Float64Array, driveScale: number): void {
     const n = block.length;
     if (n === 0) return;
     const c = this.coefficients;
     const intervals = this.intervals;
-    const invStep = 1 / this.step;
+    const invStep = driveScale / this.step;
     const twiceOrigin = (-2 * this.pMin) / this.step;
     const upVolts = this.upVolts;
     const downVolts = this.downVolts;
     let conducting = 0;
-    let drive = block[0] * invStep;
+    let drive = limitInputVolts(block[0]) * invStep;
     let x = drive + this.state;
     for (let i = 0; i < n; i++) {
-      const nextDrive = i + 1 < n ? block[i + 1] * invStep : 0;
+      const nextDrive = i + 1 < n ? limitInputVolts(block[i + 1]) * invStep : 0;
       const bracket = nextDrive + drive + twiceOrigin;
       let v: number;
       if (x >= 0 && x < intervals) {
@@ -168,6 +181,7 @@ export class DiodeNode implements ConductionMeter {
         x = bracket + c[o + 4] + t * c[o + 5] + (tt * c[o + 6] + ttt * c[o + 7]);
       } else {
         v = this.solver.solve(x * this.step + this.pMin);
+        this.newtonSamples++;
         x = bracket + this.stateGain * v - x;
       }
       if (v > upVolts || v < downVolts) conducting++;

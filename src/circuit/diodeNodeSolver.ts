@@ -35,6 +35,8 @@ export const MAX_ITERATIONS = 40;
 export const TOLERANCE_VOLTS = 1e-10;
 /** Largest Newton step, in units of the forward string's emission voltage m n Vt. */
 export const STEP_LIMIT_EMISSIONS = 4;
+/** Reverse string fully saturated beyond this many emission voltages (skips one exp). */
+const REVERSE_SATURATED_EMISSIONS = 40;
 /** Bisection halvings cap (the bracket shrinks below TOLERANCE_VOLTS long before). */
 const MAX_BISECTIONS = 200;
 
@@ -87,11 +89,6 @@ export class DiodeNodeSolver {
   private readonly maxIterations: number;
   private lastP = 0;
   private lastV = 0;
-  // Results of the last `evaluate` (fields rather than a returned object: no allocation).
-  private evalV = 0;
-  private evalDv = 1;
-  private evalF = 0;
-  private evalDf = 1;
 
   constructor(network: DiodeNetwork, conductanceSiemens: number, maxIterations = MAX_ITERATIONS) {
     this.conductance = conductanceSiemens;
@@ -112,71 +109,81 @@ export class DiodeNodeSolver {
   /** The node voltage v with G v + i_d(v) = p. */
   solve(p: number): number {
     const guess = this.lastV + this.slope * (p - this.lastP);
-    let v: number;
-    if (p > 0) v = this.solveSide(p, guess, this.positive);
-    else if (p < 0) v = -this.solveSide(-p, -guess, this.negative);
-    else {
-      v = 0;
-      this.slope = this.slopeAtZero;
-    }
     this.lastP = p;
+    if (p === 0) {
+      this.slope = this.slopeAtZero;
+      this.lastV = 0;
+      return 0;
+    }
+    // Solve the mirror image for p < 0, so that q > 0 and the root v >= 0.
+    const sign = p > 0 ? 1 : -1;
+    const side = p > 0 ? this.positive : this.negative;
+    const q = sign * p;
+    const v = sign * this.solveSide(q, sign * guess, side);
     this.lastV = v;
     return v;
   }
 
-  /** Root for q > 0 on one side; returns v >= 0 and sets `slope`. */
+  /**
+   * Root of F(u) = G v(u) + i_f(u) + i_r(v(u)) - q for q > 0; returns v >= 0 and sets `slope`.
+   * One loop, all arithmetic inline (no per-iteration calls): Newton steps first, then, if they
+   * have not converged after `maxIterations`, bisection on the bracket (the fallback).
+   */
   private solveSide(q: number, guessVolts: number, side: Side): number {
+    const conductance = this.conductance;
+    const forwardIs = side.forwardIs;
+    const forwardN = side.forwardN;
+    const forwardR = side.forwardR;
+    const reverseIs = side.reverseIs;
+    const reverseN = side.reverseN;
+    const maxStep = STEP_LIMIT_EMISSIONS * forwardN;
+    const reverseSaturatedVolts = REVERSE_SATURATED_EMISSIONS * reverseN;
+    const newtonIterations = this.maxIterations;
     let lo = 0;
-    let hi = q / this.conductance;
-    if (side.forwardIs > 0) hi = Math.min(hi, side.forwardN * Math.log1p(q / side.forwardIs));
-    const maxStep = STEP_LIMIT_EMISSIONS * side.forwardN;
+    let hi = q / conductance;
+    if (forwardIs > 0) hi = Math.min(hi, forwardN * Math.log1p(q / forwardIs));
     // The junction voltage never exceeds the node voltage, so the guess for v is one for u too.
     let u = guessVolts > lo ? (guessVolts < hi ? guessVolts : hi) : lo;
-    for (let iteration = 0; iteration < this.maxIterations; iteration++) {
-      this.evaluate(u, q, side);
-      let step = -this.evalF / this.evalDf;
-      if (Math.abs(step) <= TOLERANCE_VOLTS) {
-        // Converged: first-order update of v from the last evaluation (the step is below tolerance).
-        this.slope = this.evalDv / this.evalDf;
-        return this.evalV + this.evalDv * step;
+    let v = 0;
+    let dv = 1;
+    let dF = conductance;
+    for (let iteration = 0; iteration < newtonIterations + MAX_BISECTIONS; iteration++) {
+      if (iteration === newtonIterations) {
+        this.fallbacks++;
+        u = 0.5 * (lo + hi);
       }
-      if (this.evalF > 0) hi = u;
+      // Forward string (exp is 1 when absent: N = Infinity) and reverse leakage at v(u).
+      const e = Math.exp(u / forwardN);
+      const current = forwardIs * (e - 1);
+      const dCurrent = (forwardIs * e) / forwardN;
+      v = u + forwardR * current;
+      dv = 1 + forwardR * dCurrent;
+      // Beyond REVERSE_SATURATED_EMISSIONS the reverse string carries its full Is (exp < 1e-17).
+      const er = v > reverseSaturatedVolts ? 0 : Math.exp(-v / reverseN);
+      const F = conductance * v + current + reverseIs * (1 - er) - q;
+      dF = conductance * dv + dCurrent + ((reverseIs * er) / reverseN) * dv;
+      if (iteration >= newtonIterations) {
+        // Bisection fallback.
+        if (hi - lo <= TOLERANCE_VOLTS) break;
+        if (F > 0) hi = u;
+        else lo = u;
+        u = 0.5 * (lo + hi);
+        continue;
+      }
+      let step = -F / dF;
+      if (Math.abs(step) <= TOLERANCE_VOLTS) {
+        // Converged: first-order update of v from this evaluation (the step is below tolerance).
+        this.slope = dv / dF;
+        return v + dv * step;
+      }
+      if (F > 0) hi = u;
       else lo = u;
       if (step > maxStep) step = maxStep;
       else if (step < -maxStep) step = -maxStep;
       const next = u + step;
       u = next > lo && next < hi ? next : 0.5 * (lo + hi); // outside the bracket (or NaN): bisect
     }
-    return this.bisect(lo, hi, q, side);
-  }
-
-  /** Fallback: plain bisection on the bracket [lo, hi] of u. */
-  private bisect(lo: number, hi: number, q: number, side: Side): number {
-    this.fallbacks++;
-    for (let halving = 0; halving < MAX_BISECTIONS && hi - lo > TOLERANCE_VOLTS; halving++) {
-      const mid = 0.5 * (lo + hi);
-      this.evaluate(mid, q, side);
-      if (this.evalF > 0) hi = mid;
-      else lo = mid;
-    }
-    this.evaluate(0.5 * (lo + hi), q, side);
-    this.slope = this.evalDv / this.evalDf;
-    return this.evalV;
-  }
-
-  /** Residual F(u) = G v + i_f + i_r - q, its derivative, v(u) and dv/du. */
-  private evaluate(u: number, q: number, side: Side): void {
-    const e = Math.exp(u / side.forwardN); // 1 when the forward string is absent (N = Infinity)
-    const current = side.forwardIs * (e - 1);
-    const dCurrent = (side.forwardIs * e) / side.forwardN;
-    const v = u + side.forwardR * current;
-    const dv = 1 + side.forwardR * dCurrent;
-    const er = Math.exp(-v / side.reverseN);
-    const reverseCurrent = side.reverseIs * (1 - er); // magnitude of the reverse string's leakage
-    const dReverse = ((side.reverseIs * er) / side.reverseN) * dv;
-    this.evalV = v;
-    this.evalDv = dv;
-    this.evalF = this.conductance * v + current + reverseCurrent - q;
-    this.evalDf = this.conductance * dv + dCurrent + dReverse;
+    this.slope = dv / dF;
+    return v;
   }
 }

@@ -200,7 +200,7 @@ export function createGainStage(design: GainStageDesign): Processor & Conduction
         }
         feedbackVolts.set(block);
         admittance.process(feedbackVolts); // vin -> i_g
-        node.process(feedbackVolts); // i_g -> v_f
+        node.process(feedbackVolts, 1); // i_g -> v_f
         for (let i = 0; i < n; i++) block[i] += feedbackVolts[i];
       }
       response.process(block);

@@ -94,7 +94,7 @@ describe('table', () => {
     const design = designDiodeNode(SI_PAIR, 1 / 500e3, 100e-12, 48000, 9 / 4700);
     expect(design.table).toBeNull();
     const block = new Float64Array([1e-5, 1e-4, -1e-3, 0]);
-    new DiodeNode(design, 'table').process(block);
+    new DiodeNode(design, 'table').process(block, 1);
     for (const v of block) expect(Number.isFinite(v)).toBe(true);
     expect(block[2]).toBeLessThan(-0.4); // one forward drop the negative way
   });
@@ -106,8 +106,8 @@ describe('table', () => {
     for (let i = 0; i < drive.length; i++) drive[i] = (3 / 4700) * Math.sin(i * 0.01) + (1 / 4700) * Math.sin(i * 0.137);
     const viaTable = drive.slice();
     const viaNewton = drive.slice();
-    new DiodeNode(design, 'table').process(viaTable);
-    new DiodeNode(design, 'newton').process(viaNewton);
+    new DiodeNode(design, 'table').process(viaTable, 1);
+    new DiodeNode(design, 'newton').process(viaNewton, 1);
     for (let i = 0; i < drive.length; i++) expectClose(viaTable[i], viaNewton[i], { atol: 10 * TABLE_TOLERANCE_VOLTS });
   });
 
@@ -116,10 +116,10 @@ describe('table', () => {
     const drive = new Float64Array(1000);
     for (let i = 0; i < drive.length; i++) drive[i] = (4 / 2200) * Math.sin(i * 0.02);
     const whole = drive.slice();
-    new DiodeNode(design, 'table').process(whole);
+    new DiodeNode(design, 'table').process(whole, 1);
     const pieces = drive.slice();
     const node = new DiodeNode(design, 'table');
-    for (const [from, to] of [[0, 1], [1, 333], [333, 334], [334, 1000]]) node.process(pieces.subarray(from, to));
+    for (const [from, to] of [[0, 1], [1, 333], [333, 334], [334, 1000]]) node.process(pieces.subarray(from, to), 1);
     expect(pieces).toEqual(whole);
   });
 });
