@@ -15,6 +15,7 @@ import { integratedLoudness } from '../dsp/loudness.js';
 import { truePeakDb } from '../dsp/truePeak.js';
 import { welch } from '../dsp/welch.js';
 import { measureHarmonics, type HarmonicReport } from './harmonics.js';
+import { monoFoldDown } from '../audio/mixdown.js';
 
 export interface SpectrumPoint {
   hz: number;
@@ -70,14 +71,6 @@ function toDb(ratio: number, factor: 10 | 20): number | null {
 
 function finiteOrNull(value: number): number | null {
   return Number.isFinite(value) ? value : null;
-}
-
-function monoFoldDown(channels: readonly Float32Array[]): Float64Array {
-  const mono = new Float64Array(channels[0]?.length ?? 0);
-  for (const channel of channels) for (let i = 0; i < mono.length; i++) mono[i] += channel[i];
-  const scale = 1 / Math.max(1, channels.length);
-  for (let i = 0; i < mono.length; i++) mono[i] *= scale;
-  return mono;
 }
 
 /** Welch spectrum reduced to log-spaced bands (the strongest bin of each band, so tones stay visible). */

@@ -5,8 +5,8 @@
  */
 import type { Design } from '../design/types.js';
 import { buildChain, OVERSAMPLE_FACTORS, type OversampleFactor } from '../circuit/chain.js';
-import { coherentBin, createToneAnalyzer, type HarmonicLine } from './coherentTone.js';
-import { runSteadyTone, settleSeconds } from './toneRun.js';
+import { coherentBin, type HarmonicLine } from './coherentTone.js';
+import { measureSteadyTone, REFERENCE_TONE, TONE_WINDOW } from './referenceTone.js';
 import { findOnset, sweepThdByLevel, type LevelPoint } from './levelSweep.js';
 import {
   compareResponses,
@@ -33,15 +33,13 @@ export interface MeasureOptions {
 }
 
 export const DEFAULT_MEASURE_OPTIONS: MeasureOptions = {
-  freqHz: 1000,
-  levelVolts: 0.5,
+  ...REFERENCE_TONE,
   oversample: 8,
   aliasSweep: false,
   aliasFreqHz: 4500,
   aliasLevelVolts: 1,
   sweepMinVolts: 0.005,
   sweepMaxVolts: 2,
-  sampleRate: 48000,
 };
 
 /** Prediction and measurement must agree within this wherever the chain is linear (issue spec). */
@@ -49,7 +47,6 @@ export const RESPONSE_TOLERANCE_DB = 0.1;
 /** Level of the stepped sines for the measured response: low enough to keep diodes off. */
 export const RESPONSE_LEVEL_VOLTS = 0.001;
 
-const TONE_WINDOW = 16384;
 const ALIAS_WINDOW = 32768;
 const SWEEP_POINTS = 25;
 const RESPONSE_POINTS = 31;
@@ -83,14 +80,11 @@ export interface MeasureReport {
 export function measureDesign(design: Design<number>, options: MeasureOptions): MeasureReport {
   const { sampleRate, oversample } = options;
   const chain = buildChain(design, { sampleRate, oversample });
-  const settle = settleSeconds(design, sampleRate);
-  const bin = coherentBin(options.freqHz, sampleRate, TONE_WINDOW);
-  const toneOptions = { sampleRate, windowLength: TONE_WINDOW, fundamentalBin: bin, settleSeconds: settle };
-
-  const run = runSteadyTone(chain, { ...toneOptions, amplitudeVolts: options.levelVolts });
-  const tone = createToneAnalyzer(TONE_WINDOW, sampleRate).analyze(run.output, bin);
-  let outputPeak = 0;
-  for (let i = 0; i < run.output.length; i++) outputPeak = Math.max(outputPeak, Math.abs(run.output[i]));
+  const steady = measureSteadyTone(chain, design, options);
+  const tone = steady.analysis;
+  const outputPeak = steady.outputPeakVolts;
+  const settle = steady.settleSeconds;
+  const toneOptions = { sampleRate, windowLength: TONE_WINDOW, fundamentalBin: steady.fundamentalBin, settleSeconds: settle };
 
   const sweep: LevelPoint[] = sweepThdByLevel(chain, {
     ...toneOptions,

@@ -1,26 +1,52 @@
 /**
- * THD of a design at the `measure` reference tone (1 kHz, 0.5 V peak, 48 kHz, 16384-sample
- * coherent window): one number per design for tables that compare variants.
+ * The steady test tone every bench figure starts from: a coherent sine (1 kHz, 0.5 V peak at
+ * 48 kHz by default) through the chain, analysed on a 16384-sample window once settled. `measure`
+ * reports it in full; `compare` uses its THD as one number per variant.
  */
 import type { Design } from '../design/types.js';
-import { buildChain, type OversampleFactor } from '../circuit/chain.js';
-import { coherentBin, createToneAnalyzer } from './coherentTone.js';
+import { buildChain, type Chain, type OversampleFactor } from '../circuit/chain.js';
+import { coherentBin, createToneAnalyzer, type ToneAnalysis } from './coherentTone.js';
 import { runSteadyTone, settleSeconds } from './toneRun.js';
-import { DEFAULT_MEASURE_OPTIONS } from './measureDesign.js';
 
-/** Same window as the measure bench's THD. */
-const REFERENCE_WINDOW = 16384;
+export const TONE_WINDOW = 16384;
 
-export function referenceThdPercent(design: Design<number>, oversample: OversampleFactor): number {
-  const { freqHz, levelVolts, sampleRate } = DEFAULT_MEASURE_OPTIONS;
-  const chain = buildChain(design, { sampleRate, oversample });
-  const fundamentalBin = coherentBin(freqHz, sampleRate, REFERENCE_WINDOW);
+export const REFERENCE_TONE = { freqHz: 1000, levelVolts: 0.5, sampleRate: 48000 } as const;
+
+export interface SteadyTone {
+  analysis: ToneAnalysis;
+  output: Float64Array;
+  outputPeakVolts: number;
+  fundamentalBin: number;
+  settleSeconds: number;
+}
+
+export function measureSteadyTone(
+  chain: Chain,
+  design: Design<number>,
+  tone: { freqHz: number; levelVolts: number; sampleRate: number },
+): SteadyTone {
+  const fundamentalBin = coherentBin(tone.freqHz, tone.sampleRate, TONE_WINDOW);
+  const settle = settleSeconds(design, tone.sampleRate);
   const run = runSteadyTone(chain, {
-    sampleRate,
-    windowLength: REFERENCE_WINDOW,
+    sampleRate: tone.sampleRate,
+    windowLength: TONE_WINDOW,
     fundamentalBin,
-    amplitudeVolts: levelVolts,
-    settleSeconds: settleSeconds(design, sampleRate),
+    amplitudeVolts: tone.levelVolts,
+    settleSeconds: settle,
   });
-  return createToneAnalyzer(REFERENCE_WINDOW, sampleRate).analyze(run.output, fundamentalBin).thdPercent;
+  let peak = 0;
+  for (let i = 0; i < run.output.length; i++) peak = Math.max(peak, Math.abs(run.output[i]));
+  return {
+    analysis: createToneAnalyzer(TONE_WINDOW, tone.sampleRate).analyze(run.output, fundamentalBin),
+    output: run.output,
+    outputPeakVolts: peak,
+    fundamentalBin,
+    settleSeconds: settle,
+  };
+}
+
+/** THD in percent of a design at the reference tone. */
+export function referenceThdPercent(design: Design<number>, oversample: OversampleFactor): number {
+  const chain = buildChain(design, { sampleRate: REFERENCE_TONE.sampleRate, oversample });
+  return measureSteadyTone(chain, design, REFERENCE_TONE).analysis.thdPercent;
 }

@@ -1,5 +1,6 @@
 import type { Command } from 'commander';
 import { registerRenderCommand } from './render.js';
+import { registerCompareCommand } from './compare.js';
 import { registerDemoCommand } from './demo.js';
 import { registerMeasureCommand } from './measure.js';
 import { registerAnalyzeCommand } from './analyze.js';
@@ -9,6 +10,7 @@ import { registerPartsCommand } from './parts.js';
 /** Every command file exports `register<Name>Command(program)`; they are wired up here in menu order. */
 export function registerCommands(program: Command): void {
   registerRenderCommand(program);
+  registerCompareCommand(program);
   registerDemoCommand(program);
   registerMeasureCommand(program);
   registerAnalyzeCommand(program);

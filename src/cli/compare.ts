@@ -5,22 +5,15 @@ import { runCompare } from '../compare/runCompare.js';
 import { expandVaryMatrix, readVariantsFile, type Variant } from '../compare/variants.js';
 import type { CompareSummary } from '../compare/summary.js';
 import { formatTable, formatValue } from '../report/table.js';
-import { collect, parseBits, parseCalibration, parseOversample } from './options.js';
+import { addRenderOptions, collect, parseBits, parseCalibration, parseOversample, parseThreads, type RenderFlagValues } from './options.js';
 import { createProgressBar, type ProgressBar } from './progress.js';
 
-interface CompareFlags {
+interface CompareFlags extends RenderFlagValues {
   output: string;
   vary?: string[];
   variants?: string;
-  set?: string[];
   loudness: string;
   match: boolean;
-  oversample: string;
-  fullScale?: string;
-  inputPeak?: string;
-  bits: string;
-  parts?: string;
-  threads?: string;
 }
 
 /** Sample-peak ceiling after loudness matching, dBFS. */
@@ -34,13 +27,6 @@ function parseLoudness(text: string): number {
     throw new UserError(`--loudness: "${text}" is not a loudness from ${LOUDNESS_MIN_LUFS} to ${LOUDNESS_MAX_LUFS} LUFS (e.g. -18)`);
   }
   return value;
-}
-
-function parseThreads(text: string | undefined): number | undefined {
-  if (text === undefined) return undefined;
-  const threads = Number(text);
-  if (!Number.isInteger(threads) || threads < 1) throw new UserError(`--threads: "${text}" is not a whole number of at least 1`);
-  return threads;
 }
 
 async function chooseVariants(flags: CompareFlags): Promise<Variant[]> {
@@ -85,7 +71,7 @@ function printSummary(summary: CompareSummary, pagePath: string): void {
 }
 
 export function registerCompareCommand(program: Command): void {
-  program
+  const command = program
     .command('compare')
     .description('render variants of a design for each take, loudness-matched, with a listening page (index.html) and summary.json')
     .argument('<design>', 'design file (JSON)')
@@ -93,15 +79,9 @@ export function registerCompareCommand(program: Command): void {
     .requiredOption('-o, --output <dir>', 'output folder (created if missing)')
     .option('--vary <key=v1,v2,...>', 'values to compare for a knob or stage field (same keys as render --set); several make the full matrix', collect)
     .option('--variants <file>', 'named variants instead: {"variants": [{"label": "...", "set": {"clip.diode": "1n34a"}}]}')
-    .option('--set <key=value>', 'override for every variant (like render --set); repeatable', collect)
     .option('--loudness <LUFS>', 'loudness every player is matched to (BS.1770-4 integrated)', '-18')
-    .option('--no-match', "keep each render's own level instead of matching loudness")
-    .option('--oversample <N>', 'oversampling of the nonlinear stages: 1, 2, 4, 8 or 16', '8')
-    .option('--full-scale <V>', 'volts peak at 0 dBFS, in and out (default 1)')
-    .option('--input-peak <V>', 'instead: scale each take so its peak is V volts')
-    .option('--bits <bits>', 'output WAV: 16, 24 or 32f (float)', '24')
-    .option('--parts <file>', 'extra parts library (JSON)')
-    .option('--threads <N>', 'worker threads (default: one per core)')
+    .option('--no-match', "keep each render's own level instead of matching loudness");
+  addRenderOptions(command, 'override for every variant (like render --set); repeatable')
     .action(async (designPath: string, inputs: string[], flags: CompareFlags) => {
       const variants = await chooseVariants(flags);
       const match = flags.match ? { targetLufs: parseLoudness(flags.loudness), ceilingDbfs: CEILING_DBFS } : null;

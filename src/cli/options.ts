@@ -1,4 +1,5 @@
 /** Parsers for command-line option values; each failure names the flag, the value and what is expected. */
+import type { Command } from 'commander';
 import { UserError } from '../errors.js';
 import { OVERSAMPLE_FACTORS, type OversampleFactor } from '../circuit/chain.js';
 import type { CalibrationScale } from '../audio/calibration.js';
@@ -36,4 +37,34 @@ export function parseCalibration(fullScale: string | undefined, inputPeak: strin
   }
   if (inputPeak !== undefined) return { inputPeakVolts: parsePositiveNumber('--input-peak', inputPeak, 'V') };
   return { fullScaleVolts: fullScale === undefined ? 1 : parsePositiveNumber('--full-scale', fullScale, 'V') };
+}
+
+export function parseThreads(text: string | undefined): number | undefined {
+  if (text === undefined) return undefined;
+  const threads = Number(text);
+  if (!Number.isInteger(threads) || threads < 1) throw new UserError(`--threads: "${text}" is not a whole number of at least 1`);
+  return threads;
+}
+
+/** The flags `render` and `compare` share, as commander hands them over. */
+export interface RenderFlagValues {
+  set?: string[];
+  oversample: string;
+  fullScale?: string;
+  inputPeak?: string;
+  bits: string;
+  parts?: string;
+  threads?: string;
+}
+
+/** Adds the options shared by every command that renders takes. */
+export function addRenderOptions(command: Command, setHelp: string): Command {
+  return command
+    .option('--set <key=value>', setHelp, collect)
+    .option('--oversample <N>', 'oversampling of the nonlinear stages: 1, 2, 4, 8 or 16', '8')
+    .option('--full-scale <V>', 'volts peak at 0 dBFS, in and out (default 1)')
+    .option('--input-peak <V>', 'instead: scale each take so its peak is V volts')
+    .option('--bits <bits>', 'output WAV: 16, 24 or 32f (float)', '24')
+    .option('--parts <file>', 'extra parts library (JSON)')
+    .option('--threads <N>', 'worker threads (default: one per core)');
 }

@@ -4,34 +4,21 @@ import type { Command } from 'commander';
 import { runRenderJobs } from '../render/workerPool.js';
 import type { RenderJob } from '../render/renderJob.js';
 import { formatRows } from '../report/table.js';
-import { collect, parseBits, parseCalibration, parseOversample } from './options.js';
+import { addRenderOptions, parseBits, parseCalibration, parseOversample, parseThreads, type RenderFlagValues } from './options.js';
 import { createProgressBar } from './progress.js';
 
-interface RenderFlags {
+interface RenderFlags extends RenderFlagValues {
   output: string;
-  set?: string[];
-  oversample: string;
-  fullScale?: string;
-  inputPeak?: string;
-  bits: string;
-  parts?: string;
-  threads?: string;
 }
 
 export function registerRenderCommand(program: Command): void {
-  program
+  const command = program
     .command('render')
     .description('render dry DI takes through a design; writes one WAV and one JSON sidecar per take')
     .argument('<design>', 'design file (JSON)')
     .argument('<inputs...>', 'dry DI takes (WAV)')
-    .requiredOption('-o, --output <dir>', 'output folder (created if missing)')
-    .option('--set <key=value>', 'override a knob (drive=0.8) or a stage field (clip.diode=1n34a); repeatable', collect)
-    .option('--oversample <N>', 'oversampling of the nonlinear stages: 1, 2, 4, 8 or 16', '8')
-    .option('--full-scale <V>', 'volts peak at 0 dBFS, in and out (default 1)')
-    .option('--input-peak <V>', 'instead: scale each take so its peak is V volts')
-    .option('--bits <bits>', 'output WAV: 16, 24 or 32f (float)', '24')
-    .option('--parts <file>', 'extra parts library (JSON)')
-    .option('--threads <N>', 'worker threads (default: one per core)')
+    .requiredOption('-o, --output <dir>', 'output folder (created if missing)');
+  addRenderOptions(command, 'override a knob (drive=0.8) or a stage field (clip.diode=1n34a); repeatable')
     .action(async (designPath: string, inputs: string[], flags: RenderFlags) => {
       const scale = parseCalibration(flags.fullScale, flags.inputPeak);
       const jobs: RenderJob[] = inputs.map((inputPath) => ({
@@ -46,7 +33,7 @@ export function registerRenderCommand(program: Command): void {
       }));
       await mkdir(flags.output, { recursive: true });
       const bar = createProgressBar('rendering');
-      const threads = flags.threads === undefined ? undefined : Math.max(1, Math.floor(Number(flags.threads)) || 1);
+      const threads = parseThreads(flags.threads);
       const outcomes = await runRenderJobs(jobs, { threads, onProgress: (f) => bar.update(f) });
       bar.finish();
 

@@ -9,6 +9,7 @@ import { floorPowerOfTwo } from '../dsp/fft.js';
 import { welch } from '../dsp/welch.js';
 import { measureLevels } from '../render/levels.js';
 import { logSpacedSpectrum, type SpectrumPoint } from '../analysis/analyzeTake.js';
+import { monoFoldDown } from '../audio/mixdown.js';
 
 export interface TakeMetrics {
   loudnessLufs: number | null;
@@ -44,14 +45,6 @@ export function spectralCentroidHz(signal: Float64Array, sampleRate: number): nu
     total += values[k];
   }
   return total > 0 ? weighted / total : null;
-}
-
-function monoFoldDown(channels: readonly Float32Array[]): Float64Array {
-  const mono = new Float64Array(channels[0]?.length ?? 0);
-  for (const channel of channels) for (let i = 0; i < mono.length; i++) mono[i] += channel[i];
-  const scale = 1 / Math.max(1, channels.length);
-  for (let i = 0; i < mono.length; i++) mono[i] *= scale;
-  return mono;
 }
 
 function finiteOrNull(value: number): number | null {
