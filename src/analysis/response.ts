@@ -5,8 +5,8 @@
  */
 import type { Design } from '../design/types.js';
 import type { Chain } from '../circuit/chain.js';
-import { bilinearTransform, digitalResponse } from '../dsp/bilinear.js';
-import { isNonlinearStage, stageSmallSignal } from '../circuit/stageModels.js';
+import { digitalResponse } from '../dsp/bilinear.js';
+import { isNonlinearStage, stageDigitalTransferFunction } from '../circuit/stageModels.js';
 import { coherentBin, createToneAnalyzer } from './coherentTone.js';
 import { runSteadyTone } from './toneRun.js';
 import { logSpaced } from './levelSweep.js';
@@ -38,7 +38,7 @@ export function predictResponse(
   const fast = { ...base, sampleRate: sampleRate * oversample };
   const digital = design.stages.map((stage) => {
     const ctx = isNonlinearStage(stage) && oversample > 1 ? fast : base;
-    return bilinearTransform(stageSmallSignal(stage, ctx, design.knobs), ctx.sampleRate);
+    return stageDigitalTransferFunction(stage, ctx, design.knobs);
   });
   return frequencies.map((hz) => {
     let re = 1;

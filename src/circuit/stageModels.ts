@@ -3,7 +3,7 @@
  * processor, and its small-signal transfer function (what `measure` predicts). The chain only talks
  * to stages through this table.
  */
-import type { AnalogTransferFunction } from '../dsp/bilinear.js';
+import { bilinearTransform, type AnalogTransferFunction, type DigitalTransferFunction } from '../dsp/bilinear.js';
 import type { CircuitContext, Stage } from '../design/types.js';
 import type { Processor } from './processor.js';
 import type { ConductionMeter } from './conduction.js';
@@ -78,5 +78,31 @@ export function stageSmallSignal(
       return gainStageSmallSignal(stage, ctx);
     case 'clipper':
       return clipperSmallSignal(stage, ctx);
+  }
+}
+
+/**
+ * The digital small-signal H(z) a resolved stage runs at `ctx.sampleRate`: the linear stages' own
+ * (pre-warped) designs, and for the nonlinear stages the plain bilinear transform of their
+ * small-signal H(s), which is what their discretisation reduces to at vanishing level.
+ */
+export function stageDigitalTransferFunction(
+  stage: Stage<number>,
+  ctx: CircuitContext,
+  knobs: Record<string, number>,
+): DigitalTransferFunction {
+  switch (stage.type) {
+    case 'input':
+      return designInputStage(stage, ctx);
+    case 'tone':
+      return designToneStage(stage, ctx);
+    case 'lowpass':
+    case 'highpass':
+      return designRcFilter(stage, ctx);
+    case 'volume':
+      return designVolumeStage(stage, knobs[stage.knob] ?? 0.5, ctx);
+    case 'gain':
+    case 'clipper':
+      return bilinearTransform(stageSmallSignal(stage, ctx, knobs), ctx.sampleRate);
   }
 }

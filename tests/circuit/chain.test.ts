@@ -1,18 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { buildChain, OVERSAMPLE_FACTORS } from '../../src/circuit/chain.js';
 import { renderChannel } from '../../src/circuit/renderChannel.js';
-import type { Design, OpampParams } from '../../src/design/types.js';
-
-const idealOpamp: OpampParams = {
-  name: 'ideal',
-  gbwHz: Infinity,
-  slewRateVoltsPerSecond: Infinity,
-  headroomLowVolts: 0,
-  headroomHighVolts: 0,
-  supplyMinVolts: 3,
-  supplyMaxVolts: 48,
-  source: 'test: ideal op-amp',
-};
+import type { Design } from '../../src/design/types.js';
+import { IDEAL_OPAMP } from './parts.js';
 
 function unityBufferDesign(): Design<number> {
   return {
@@ -21,7 +11,7 @@ function unityBufferDesign(): Design<number> {
     temperatureC: 25,
     knobs: {},
     stages: [
-      { id: 'buf', type: 'gain', opamp: idealOpamp, rf: 0, rg: null, cg: null, cf: null, feedbackDiode: null, feedbackUp: 0, feedbackDown: 0 },
+      { id: 'buf', type: 'gain', opamp: IDEAL_OPAMP, rf: 0, rg: null, cg: null, cf: null, feedbackDiode: null, feedbackUp: 0, feedbackDown: 0 },
     ],
   };
 }
