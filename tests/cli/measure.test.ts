@@ -1,0 +1,39 @@
+import { existsSync, mkdtempSync, readFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { PROJECT_ROOT, runCli } from '../helpers/cli.js';
+
+const design = path.join(PROJECT_ROOT, 'fixtures', 'designs', 'night-drive.json');
+
+describe('clipbench measure', () => {
+  it('prints a summary and writes JSON with the documented keys, HTML and one SVG per plot', () => {
+    const dir = mkdtempSync(path.join(tmpdir(), 'clipbench-measure-'));
+    const json = path.join(dir, 'm.json');
+    const html = path.join(dir, 'm.html');
+    const result = runCli(['measure', design, '--oversample', '2', '--set', 'drive=0.3', '--json', json, '--html', html]);
+    expect(result.stderr).toBe('');
+    expect(result.status).toBe(0);
+    expect(result.stdout).toMatch(/THD/);
+    const report = JSON.parse(readFileSync(json, 'utf8'));
+    for (const key of ['thdPercent', 'thdnPercent', 'harmonics', 'thdByLevel', 'onset', 'response', 'responseMeasured', 'transfer', 'aliasDbc', 'gainDb', 'maxOutputVolts']) {
+      expect(report, key).toHaveProperty(key);
+    }
+    expect(Object.keys(report.onset).sort()).toEqual(['1', '10', '3']);
+    expect(report.harmonics[0]).toEqual(expect.objectContaining({ order: 2 }));
+    // A symmetric 1N4148 pair: odd harmonics dominate (symmetric odd nonlinearity, BRIEF section 3).
+    expect(report.harmonics[1].dbc).toBeGreaterThan(report.harmonics[0].dbc + 60);
+    const page = readFileSync(html, 'utf8');
+    expect(page).toMatch(/<svg/);
+    expect(page).not.toMatch(/<script src=|<link /); // self-contained: nothing loaded from elsewhere
+    for (const plot of ['harmonics', 'thd-by-level', 'response', 'phase', 'transfer']) {
+      expect(existsSync(path.join(dir, `m-${plot}.svg`)), plot).toBe(true);
+    }
+  });
+
+  it('refuses a test frequency outside the audio band', () => {
+    const result = runCli(['measure', design, '--freq', '30000']);
+    expect(result.status).not.toBe(0);
+    expect(result.stderr).toMatch(/--freq/);
+  });
+});
