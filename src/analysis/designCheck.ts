@@ -273,7 +273,7 @@ function checkGainStage(out: CheckCollector, stage: GainStage, design: Design, i
       ? feedbackDiodeOutput(out, stage, stage.feedbackDiode, inputPeak, design.temperatureC)
       : { up: inputPeak.up * gain.max, down: inputPeak.down * gain.max };
   const clipsAtRails = demand.up > swing.up || demand.down > swing.down;
-  if (clipsAtRails && (diodesFollow || stage.feedbackDiode !== null)) {
+  if (clipsAtRails && (diodesFollow || stage.feedbackDiode !== null) && stage.railClipping !== true) {
     const where = stage.feedbackDiode !== null ? 'its feedback diodes' : 'the diodes after it';
     out.warn('rails-before-diodes', stage.id, `at ${voltsText(inputPeak.up)} in and full gain the output would need ${voltsText(Math.max(demand.up, demand.down))} peak but the ${opamp.name} swings only +${voltsText(swing.up)}/-${voltsText(swing.down)}: it clips at its rails before ${where} do`);
   }

@@ -66,6 +66,7 @@ export const STAGE_FIELDS: Readonly<Record<StageType, FieldTable>> = {
     feedbackDiode: optional('diode', 'Diode part (or inline diode) across rf: clipping inside the feedback loop'),
     feedbackUp: optional('count', 'Feedback diodes in series conducting for positive output (default 1 with feedbackDiode)'),
     feedbackDown: optional('count', 'Feedback diodes in series conducting for negative output (default 1 with feedbackDiode)'),
+    railClipping: optional('boolean', 'Clipping at the op-amp rails is intended: check does not warn that the rails clip before the diodes (default false)'),
   },
   clipper: {
     ...STAGE_HEAD,

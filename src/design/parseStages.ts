@@ -89,7 +89,8 @@ class StageReader {
     return this.has(key) ? readTaper(this.raw[key], this.at(key), this.ctx.where) : fallback;
   }
 
-  reverse(key: string): boolean {
+  /** An optional true/false field, false when absent. */
+  flag(key: string): boolean {
     return this.has(key) ? readBoolean(this.raw[key], this.at(key), this.ctx.where) : false;
   }
 
@@ -163,6 +164,7 @@ function parseGain(stage: StageReader): GainStage {
     feedbackDiode,
     feedbackUp: stage.count('feedbackUp', defaultCount),
     feedbackDown: stage.count('feedbackDown', defaultCount),
+    railClipping: stage.flag('railClipping'),
   };
 }
 
@@ -195,7 +197,7 @@ function parseTypedStage(type: StageType, stage: StageReader): Stage {
         potOhms: stage.ohms('pot'),
         knob: stage.knob('knob'),
         taper: stage.taper('taper', 'linear'),
-        reverse: stage.reverse('reverse'),
+        reverse: stage.flag('reverse'),
       };
       return { id, type, r, cap: stage.capacitance('cap') };
     }
@@ -203,7 +205,7 @@ function parseTypedStage(type: StageType, stage: StageReader): Stage {
     case 'highpass':
       return { id, type, r: stage.resistance('r'), c: stage.capacitance('c') };
     case 'volume':
-      return { id, type, potOhms: stage.ohms('pot'), knob: stage.knob('knob'), taper: stage.taper('taper', 'audio'), reverse: stage.reverse('reverse') };
+      return { id, type, potOhms: stage.ohms('pot'), knob: stage.knob('knob'), taper: stage.taper('taper', 'audio'), reverse: stage.flag('reverse') };
   }
 }
 

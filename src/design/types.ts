@@ -58,6 +58,8 @@ export interface GainStage<R = Resistance> {
   feedbackDiode: DiodeParams | null;
   feedbackUp: number;
   feedbackDown: number;
+  /** Clipping at the rails is intended (no `rails-before-diodes` warning from check); absent = false. */
+  railClipping?: boolean;
 }
 
 export interface ClipperStage<R = Resistance> {
