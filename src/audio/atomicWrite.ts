@@ -3,7 +3,7 @@
  * replaces one of the inputs.
  */
 import { realpathSync, statSync } from 'node:fs';
-import { open, rename, rm } from 'node:fs/promises';
+import { open, rename, rm, type FileHandle } from 'node:fs/promises';
 import { basename, dirname, join, resolve } from 'node:path';
 import { UserError } from '../errors.js';
 
@@ -15,12 +15,17 @@ let temporaryCounter = 0;
  * the temporary file is removed and nothing is left under the final name that was not there before.
  */
 export async function writeFileAtomic(path: string, data: string | Uint8Array): Promise<void> {
+  await writeFileAtomicWith(path, (handle) => handle.writeFile(data));
+}
+
+/** Like `writeFileAtomic`, with the content written by `write` through an open handle (for streaming). */
+export async function writeFileAtomicWith(path: string, write: (handle: FileHandle) => Promise<void>): Promise<void> {
   temporaryCounter += 1;
   const temporaryPath = join(dirname(path), `.${basename(path)}.${process.pid}.${temporaryCounter}.tmp`);
   try {
     const handle = await open(temporaryPath, 'wx');
     try {
-      await handle.writeFile(data);
+      await write(handle);
       await handle.sync();
     } finally {
       await handle.close();

@@ -5,14 +5,25 @@
  * [-2^(bits-1), 2^(bits-1) - 1]; no dither, so the same samples always give the same bytes.
  */
 import { UserError } from '../errors.js';
-import { writeFileAtomic } from './atomicWrite.js';
+import { writeFileAtomicWith } from './atomicWrite.js';
 import { FLOAT32_MAX, pcmFullScale, WAVE_FORMAT_IEEE_FLOAT, WAVE_FORMAT_PCM } from './wavFormat.js';
 
 export type WavOutputBits = '16' | '24' | '32f';
 
 const HEADER_BYTES = 44;
+/** Frames encoded per write when streaming a file, so a render needs no second copy of itself. */
+const STREAM_CHUNK_FRAMES = 65536;
 
-export function encodeWav(channels: Float32Array[] | Float64Array[], sampleRate: number, bits: WavOutputBits): Uint8Array {
+interface WavShape {
+  channelCount: number;
+  frames: number;
+  bytesPerSample: number;
+  blockAlign: number;
+  dataBytes: number;
+  padBytes: number;
+}
+
+function wavShape(channels: Float32Array[] | Float64Array[], sampleRate: number, bits: WavOutputBits): WavShape {
   validateEncodeArguments(channels, sampleRate, bits);
   const channelCount = channels.length;
   const frames = channels[0].length;
@@ -23,39 +34,77 @@ export function encodeWav(channels: Float32Array[] | Float64Array[], sampleRate:
   if (HEADER_BYTES - 8 + dataBytes + padBytes > 0xffffffff) {
     throw new UserError(`render too long for a WAV file: ${dataBytes} bytes of audio exceed the 4 GiB RIFF limit; render shorter takes`);
   }
-  const bytes = new Uint8Array(HEADER_BYTES + dataBytes + padBytes);
-  const view = new DataView(bytes.buffer);
+  return { channelCount, frames, bytesPerSample, blockAlign, dataBytes, padBytes };
+}
+
+function writeHeader(bytes: Uint8Array, shape: WavShape, sampleRate: number, bits: WavOutputBits): void {
+  const view = new DataView(bytes.buffer, bytes.byteOffset, HEADER_BYTES);
   writeAscii(bytes, 0, 'RIFF');
-  view.setUint32(4, HEADER_BYTES - 8 + dataBytes + padBytes, true);
+  view.setUint32(4, HEADER_BYTES - 8 + shape.dataBytes + shape.padBytes, true);
   writeAscii(bytes, 8, 'WAVE');
   writeAscii(bytes, 12, 'fmt ');
   view.setUint32(16, 16, true);
   view.setUint16(20, bits === '32f' ? WAVE_FORMAT_IEEE_FLOAT : WAVE_FORMAT_PCM, true);
-  view.setUint16(22, channelCount, true);
+  view.setUint16(22, shape.channelCount, true);
   view.setUint32(24, sampleRate, true);
-  view.setUint32(28, sampleRate * blockAlign, true);
-  view.setUint16(32, blockAlign, true);
-  view.setUint16(34, bytesPerSample * 8, true);
+  view.setUint32(28, sampleRate * shape.blockAlign, true);
+  view.setUint16(32, shape.blockAlign, true);
+  view.setUint16(34, shape.bytesPerSample * 8, true);
   writeAscii(bytes, 36, 'data');
-  view.setUint32(40, dataBytes, true);
-  for (let channel = 0; channel < channelCount; channel++) {
-    const offset = HEADER_BYTES + channel * bytesPerSample;
-    const samples = channels[channel];
-    if (bits === '16') encodePcm16(view, samples, offset, blockAlign);
-    else if (bits === '24') encodePcm24(bytes, samples, offset, blockAlign);
-    else encodeFloat32(view, samples, offset, blockAlign);
+  view.setUint32(40, shape.dataBytes, true);
+}
+
+/** Interleaves frames [start, end) of every channel into `bytes` from byte `offset` on. */
+function encodeFrames(
+  channels: Float32Array[] | Float64Array[],
+  start: number,
+  end: number,
+  bits: WavOutputBits,
+  shape: WavShape,
+  bytes: Uint8Array,
+  offset: number,
+): void {
+  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  for (let channel = 0; channel < shape.channelCount; channel++) {
+    const samples = channels[channel].subarray(start, end);
+    const first = offset + channel * shape.bytesPerSample;
+    if (bits === '16') encodePcm16(view, samples, first, shape.blockAlign);
+    else if (bits === '24') encodePcm24(bytes, samples, first, shape.blockAlign);
+    else encodeFloat32(view, samples, first, shape.blockAlign);
   }
+}
+
+export function encodeWav(channels: Float32Array[] | Float64Array[], sampleRate: number, bits: WavOutputBits): Uint8Array {
+  const shape = wavShape(channels, sampleRate, bits);
+  const bytes = new Uint8Array(HEADER_BYTES + shape.dataBytes + shape.padBytes);
+  writeHeader(bytes, shape, sampleRate, bits);
+  encodeFrames(channels, 0, shape.frames, bits, shape, bytes, HEADER_BYTES);
   return bytes;
 }
 
-/** Encodes and writes atomically (temporary name, then rename). */
+/**
+ * Encodes and writes atomically (temporary name, then rename), a chunk of frames at a time, so the
+ * file's bytes are never all in memory: the same bytes as `encodeWav`.
+ */
 export async function writeWavFile(
   path: string,
   channels: Float32Array[] | Float64Array[],
   sampleRate: number,
   bits: WavOutputBits,
 ): Promise<void> {
-  await writeFileAtomic(path, encodeWav(channels, sampleRate, bits));
+  const shape = wavShape(channels, sampleRate, bits);
+  const header = new Uint8Array(HEADER_BYTES);
+  writeHeader(header, shape, sampleRate, bits);
+  const chunk = new Uint8Array(Math.min(shape.frames, STREAM_CHUNK_FRAMES) * shape.blockAlign + shape.padBytes);
+  await writeFileAtomicWith(path, async (handle) => {
+    await handle.write(header);
+    for (let start = 0; start < shape.frames; start += STREAM_CHUNK_FRAMES) {
+      const end = Math.min(shape.frames, start + STREAM_CHUNK_FRAMES);
+      encodeFrames(channels, start, end, bits, shape, chunk, 0);
+      await handle.write(chunk, 0, (end - start) * shape.blockAlign);
+    }
+    if (shape.padBytes > 0) await handle.write(new Uint8Array(shape.padBytes));
+  });
 }
 
 /** Programming errors, not user errors: the caller's samples come from our own stages. */

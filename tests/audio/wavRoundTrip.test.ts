@@ -1,4 +1,4 @@
-import { mkdtempSync, readdirSync, rmSync } from 'node:fs';
+import { mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, test } from 'vitest';
@@ -155,5 +155,16 @@ describe('formats read from hand-built files', () => {
       const wav = decodeWav(riffWave(order), 'chunks.wav');
       expect(Array.from(wav.channels[0])).toEqual([0.5, -0.5]);
     }
+  });
+});
+
+describe('streamed writing', () => {
+  test.each(['16', '24', '32f'] as const)('writeWavFile streams the same bytes as encodeWav (%s-bit, several chunks, odd length)', async (bits: WavOutputBits) => {
+    const frames = 150_001; // more than two 65536-frame chunks; odd, so 24-bit mono needs a pad byte
+    const samples = new Float32Array(frames);
+    for (let i = 0; i < frames; i++) samples[i] = Math.sin(i * 0.01) * 0.9;
+    const path = join(folder, `stream-${bits}.wav`);
+    await writeWavFile(path, [samples], 48000, bits);
+    expect(readFileSync(path).equals(Buffer.from(encodeWav([samples], 48000, bits)))).toBe(true);
   });
 });
