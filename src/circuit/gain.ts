@@ -32,7 +32,7 @@ import { diodeString, validateDiode } from './diode.js';
 import { DiodeNode, designDiodeNode, type DiodeNodeDesign, type DiodeSolverKind } from './diodeNode.js';
 import { networkConductanceAtZero, type DiodeNetwork } from './diodeNodeSolver.js';
 import { limitInputVolts } from './inputLimit.js';
-import { OpampOutput, designOpampOutput, withGainBandwidth, type OpampOutputDesign, type RailMeter } from './opamp.js';
+import { OpampStage, designOpampOutput, withGainBandwidth, type OpampOutputDesign, type RailMeter } from './opamp.js';
 import type { Processor } from './processor.js';
 
 export interface GainStageDesign {
@@ -165,8 +165,7 @@ export function designGainStage(spec: GainStage<number>, ctx: CircuitContext, op
 }
 
 export function createGainStage(design: GainStageDesign): Processor & ConductionMeter & RailMeter {
-  const response = createIirFilter(design.response);
-  const output = new OpampOutput(design.output);
+  const output = new OpampStage(design.response, design.output);
   const feedback = design.feedback;
   const admittance = feedback === null ? null : createIirFilter(feedback.admittance);
   const node = feedback === null ? null : new DiodeNode(feedback.node, design.solver);
@@ -185,15 +184,14 @@ export function createGainStage(design: GainStageDesign): Processor & Conduction
       return output.railSamples;
     },
     reset(): void {
-      response.reset();
       output.reset();
       admittance?.reset();
       node?.reset();
     },
     process(block: Float64Array): void {
       const n = block.length;
-      for (let i = 0; i < n; i++) block[i] = limitInputVolts(block[i]);
       if (admittance !== null && node !== null) {
+        for (let i = 0; i < n; i++) block[i] = limitInputVolts(block[i]);
         if (feedbackVolts.length !== n) {
           if (scratch.length < n) scratch = new Float64Array(n);
           feedbackVolts = scratch.subarray(0, n);
@@ -203,8 +201,7 @@ export function createGainStage(design: GainStageDesign): Processor & Conduction
         node.process(feedbackVolts, 1); // i_g -> v_f
         for (let i = 0; i < n; i++) block[i] += feedbackVolts[i];
       }
-      response.process(block);
-      output.process(block);
+      output.process(block); // closed loop (or GBW pole), slew, rails
     },
   };
 }
