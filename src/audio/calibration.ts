@@ -7,10 +7,8 @@ import { UserError } from '../errors.js';
 
 export type CalibrationScale = { fullScaleVolts: number } | { inputPeakVolts: number };
 
-export interface CalibratedTake {
-  /** One array per channel, in volts. */
-  channels: Float64Array[];
-  /** Volts that digital full scale (1.0) stands for. */
+export interface Calibration {
+  /** Volts that digital full scale (1.0) stands for, reading the take and writing its render. */
   voltsPerFullScale: number;
   /** Peak of the calibrated take, volts. */
   inputPeakVolts: number;
@@ -49,10 +47,11 @@ function requirePositiveVolts(volts: number, what: string): void {
 }
 
 /**
- * Converts digital samples to volts. `sourceName` (e.g. the file path) names the take in errors.
+ * The calibration of one take: volts = samples x voltsPerFullScale on the way in, and the same
+ * factor back on the way out. `sourceName` (e.g. the file path) names the take in errors.
  * Input-peak mode refuses a silent take, which has no peak to scale.
  */
-export function toVolts(channels: Float32Array[], scale: CalibrationScale, sourceName?: string): CalibratedTake {
+export function calibrate(channels: readonly Float32Array[], scale: CalibrationScale, sourceName?: string): Calibration {
   const digitalPeak = peakOf(channels);
   let voltsPerFullScale: number;
   if ('fullScaleVolts' in scale) {
@@ -66,20 +65,5 @@ export function toVolts(channels: Float32Array[], scale: CalibrationScale, sourc
     }
     voltsPerFullScale = scale.inputPeakVolts / digitalPeak;
   }
-  const volts = channels.map((samples) => {
-    const out = new Float64Array(samples.length);
-    for (let i = 0; i < samples.length; i++) out[i] = samples[i] * voltsPerFullScale;
-    return out;
-  });
-  return { channels: volts, voltsPerFullScale, inputPeakVolts: digitalPeak * voltsPerFullScale };
-}
-
-/** Converts volts back to digital full scale with the scale the take was read at. */
-export function fromVolts(channels: Float64Array[], voltsPerFullScale: number): Float64Array[] {
-  requirePositiveVolts(voltsPerFullScale, 'volts per full scale');
-  return channels.map((volts) => {
-    const out = new Float64Array(volts.length);
-    for (let i = 0; i < volts.length; i++) out[i] = volts[i] / voltsPerFullScale;
-    return out;
-  });
+  return { voltsPerFullScale, inputPeakVolts: digitalPeak * voltsPerFullScale };
 }

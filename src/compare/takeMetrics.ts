@@ -53,7 +53,7 @@ function finiteOrNull(value: number): number | null {
 
 export async function measureWrittenTake(wavPath: string): Promise<TakeMetrics> {
   const wav = await readWavFile(wavPath);
-  const levels = measureLevels(wav.channels.map((channel) => Float64Array.from(channel)));
+  const levels = measureLevels(wav.channels, 1); // full scale = 1
   const mono = monoFoldDown(wav.channels);
   return {
     loudnessLufs: finiteOrNull(integratedLoudness(wav.channels, wav.sampleRate)),

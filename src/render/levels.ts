@@ -1,4 +1,4 @@
-/** Level statistics of multichannel signals, in the units they are given (volts here). */
+/** Level statistics of multichannel signals held in digital full scale. */
 
 export interface LevelStats {
   peakVolts: number;
@@ -7,7 +7,8 @@ export interface LevelStats {
   crestDb: number;
 }
 
-export function measureLevels(channels: readonly Float64Array[]): LevelStats {
+/** Peak, RMS and crest factor over all channels, in volts (`voltsPerFullScale` x the samples). */
+export function measureLevels(channels: readonly (Float32Array | Float64Array)[], voltsPerFullScale: number): LevelStats {
   let peak = 0;
   let sumSquares = 0;
   let count = 0;
@@ -21,10 +22,14 @@ export function measureLevels(channels: readonly Float64Array[]): LevelStats {
     count += channel.length;
   }
   const rms = count > 0 ? Math.sqrt(sumSquares / count) : 0;
-  return { peakVolts: peak, rmsVolts: rms, crestDb: rms > 0 ? 20 * Math.log10(peak / rms) : 0 };
+  return {
+    peakVolts: peak * voltsPerFullScale,
+    rmsVolts: rms * voltsPerFullScale,
+    crestDb: rms > 0 ? 20 * Math.log10(peak / rms) : 0,
+  };
 }
 
-/** dB relative to full scale for a value in volts; -Infinity becomes null in JSON, so clamp to -999. */
+/** dB relative to full scale for a value in volts; silence reads -999 (JSON has no -Infinity). */
 export function voltsToDbfs(volts: number, voltsAtFullScale: number): number {
   if (volts <= 0) return -999;
   return 20 * Math.log10(volts / voltsAtFullScale);
@@ -39,7 +44,8 @@ export interface OverReport {
   maxDbfs: number;
 }
 
-export function findOvers(channels: readonly Float64Array[], voltsAtFullScale: number, sampleRate: number): OverReport {
+/** Samples beyond digital full scale (|x| > 1). */
+export function findOvers(channels: readonly (Float32Array | Float64Array)[], sampleRate: number): OverReport {
   let count = 0;
   let first = Infinity;
   let peak = 0;
@@ -47,7 +53,7 @@ export function findOvers(channels: readonly Float64Array[], voltsAtFullScale: n
     for (let i = 0; i < channel.length; i++) {
       const magnitude = Math.abs(channel[i]);
       if (magnitude > peak) peak = magnitude;
-      if (magnitude > voltsAtFullScale) {
+      if (magnitude > 1) {
         count++;
         if (i < first) first = i;
       }
@@ -56,6 +62,6 @@ export function findOvers(channels: readonly Float64Array[], voltsAtFullScale: n
   return {
     count,
     firstSeconds: count > 0 ? first / sampleRate : null,
-    maxDbfs: voltsToDbfs(peak, voltsAtFullScale),
+    maxDbfs: voltsToDbfs(peak, 1),
   };
 }

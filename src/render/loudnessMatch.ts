@@ -32,9 +32,9 @@ export interface LoudnessMatchReport {
 }
 
 /** Applies the matching gain to `channels` in place and reports what it did. */
-export function applyLoudnessMatch(channels: Float64Array[], sampleRate: number, target: LoudnessMatchTarget): LoudnessMatchReport {
+export function applyLoudnessMatch(channels: readonly (Float32Array | Float64Array)[], sampleRate: number, target: LoudnessMatchTarget): LoudnessMatchReport {
   const loudness = integratedLoudness(channels, sampleRate);
-  const before = measureLevels(channels);
+  const before = measureLevels(channels, 1); // full scale = 1
   // A finite loudness implies a non-zero peak (some block passed the -70 LKFS gate).
   const matched = Number.isFinite(loudness);
   let gainDb = 0;

@@ -4,7 +4,6 @@
  */
 import path from 'node:path';
 import { readWavFile } from '../audio/wavRead.js';
-import { fromVolts } from '../audio/calibration.js';
 import { writeWavFile, type WavOutputBits } from '../audio/wavWrite.js';
 import { assertNotAnInput, writeFileAtomic } from '../audio/atomicWrite.js';
 import { loadPartsLibrary } from '../design/parts.js';
@@ -13,7 +12,7 @@ import { resolveDesign } from '../design/resolve.js';
 import type { OversampleFactor } from '../circuit/chain.js';
 import type { RenderProgress } from '../circuit/renderChannel.js';
 import type { CalibrationScale } from '../audio/calibration.js';
-import { renderTake, type RenderSummary } from './renderTake.js';
+import { renderTakeInPlace, type RenderSummary } from './renderTake.js';
 import { applyLoudnessMatch, type LoudnessMatchReport, type LoudnessMatchTarget } from './loudnessMatch.js';
 
 export interface RenderJob {
@@ -68,17 +67,17 @@ export async function runRenderJob(job: RenderJob, onProgress?: RenderProgress):
   assertNotAnInput(wavPath, inputs);
   assertNotAnInput(sidecarPath, inputs);
 
-  const rendered = renderTake(design, wav, { oversample: job.oversample, scale: job.scale, onProgress });
-  const fileChannels = fromVolts(rendered.volts, rendered.summary.voltsAtFullScale);
+  // The decoded samples are rendered in place: afterwards they hold the render, full scale = 1.
+  const summary = renderTakeInPlace(design, wav, { oversample: job.oversample, scale: job.scale, onProgress });
   // `summary.output` stays the circuit's own level; `loudnessMatch` tells the gain the file got.
-  const match = job.match ? applyLoudnessMatch(fileChannels, wav.sampleRate, job.match) : undefined;
-  await writeWavFile(wavPath, fileChannels, wav.sampleRate, job.bits);
+  const match = job.match ? applyLoudnessMatch(wav.channels, wav.sampleRate, job.match) : undefined;
+  await writeWavFile(wavPath, wav.channels, wav.sampleRate, job.bits);
   const sidecar = {
-    ...rendered.summary,
-    output: { ...rendered.summary.output, file: path.basename(wavPath), bits: job.bits },
+    ...summary,
+    output: { ...summary.output, file: path.basename(wavPath), bits: job.bits },
     overrides: job.overrides,
     ...(match ? { loudnessMatch: match } : {}),
   };
   await writeFileAtomic(sidecarPath, `${JSON.stringify(sidecar, null, 2)}\n`);
-  return { wavPath, sidecarPath, summary: rendered.summary, ...(match ? { match } : {}) };
+  return { wavPath, sidecarPath, summary, ...(match ? { match } : {}) };
 }

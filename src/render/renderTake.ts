@@ -1,12 +1,14 @@
 /**
- * Render one decoded take through a resolved design: calibrate to volts, run every channel through
- * a fresh chain, and gather the level figures the sidecar reports.
+ * Render one decoded take through a resolved design, in place: each channel is read as volts
+ * (calibrated), run through a fresh chain block by block, and written back over the decoded samples
+ * in digital full scale with the same calibration. A render therefore needs the decoded audio plus a
+ * constant, however long the take. The level figures for the sidecar are gathered on the way.
  */
 import type { DecodedWav } from '../audio/wavRead.js';
-import { toVolts, type CalibrationScale } from '../audio/calibration.js';
+import { calibrate, type CalibrationScale } from '../audio/calibration.js';
 import type { Design } from '../design/types.js';
 import { buildChain, type OversampleFactor } from '../circuit/chain.js';
-import { renderChannel, type RenderProgress } from '../circuit/renderChannel.js';
+import { renderInto, type RenderProgress } from '../circuit/renderChannel.js';
 import { findOvers, measureLevels, voltsToDbfs, type OverReport } from './levels.js';
 
 export interface RenderTakeOptions {
@@ -40,17 +42,11 @@ export interface RenderSummary {
   warnings: string[];
 }
 
-export interface RenderedTake {
-  /** Output in volts, one array per channel, same length as the input. */
-  volts: Float64Array[];
-  summary: RenderSummary;
-}
-
 /** A render this much hotter (RMS) than its input earns a loudness warning. */
 const HOT_RENDER_DB = 12;
 
-function levelFigures(channels: readonly Float64Array[], voltsAtFullScale: number): LevelFigures {
-  const levels = measureLevels(channels);
+function levelFigures(channels: readonly Float32Array[], voltsAtFullScale: number): LevelFigures {
+  const levels = measureLevels(channels, voltsAtFullScale);
   return {
     peakVolts: levels.peakVolts,
     peakDbfs: voltsToDbfs(levels.peakVolts, voltsAtFullScale),
@@ -60,16 +56,17 @@ function levelFigures(channels: readonly Float64Array[], voltsAtFullScale: numbe
   };
 }
 
-export function renderTake(design: Design<number>, wav: DecodedWav, options: RenderTakeOptions): RenderedTake {
-  const calibrated = toVolts(wav.channels, options.scale, wav.path);
-  const voltsAtFullScale = calibrated.voltsPerFullScale;
+/** Renders `wav.channels` in place (they hold the render afterwards, full scale = 1) and sums it up. */
+export function renderTakeInPlace(design: Design<number>, wav: DecodedWav, options: RenderTakeOptions): RenderSummary {
+  const { voltsPerFullScale } = calibrate(wav.channels, options.scale, wav.path);
+  const input = levelFigures(wav.channels, voltsPerFullScale);
   const chain = buildChain(design, { sampleRate: wav.sampleRate, oversample: options.oversample });
   const conductingCounts = new Map<string, { conducting: number; counted: number }>();
-  const totalSamples = calibrated.channels.length * wav.frames;
-  const volts = calibrated.channels.map((channel, index) => {
+  const totalSamples = wav.channels.length * wav.frames;
+  wav.channels.forEach((channel, index) => {
     const offset = index * wav.frames;
     const progress = options.onProgress;
-    const rendered = renderChannel(chain, channel, progress ? (done) => progress(offset + done, totalSamples) : undefined);
+    renderInto(chain, channel, channel, voltsPerFullScale, 1 / voltsPerFullScale, progress ? (done) => progress(offset + done, totalSamples) : undefined);
     for (const stage of chain.stages) {
       const meter = stage.processor.conduction;
       if (!meter) continue;
@@ -78,12 +75,10 @@ export function renderTake(design: Design<number>, wav: DecodedWav, options: Ren
       sums.counted += meter.countedSamples;
       conductingCounts.set(stage.id, sums);
     }
-    return rendered;
   });
 
-  const input = levelFigures(calibrated.channels, voltsAtFullScale);
-  const output = levelFigures(volts, voltsAtFullScale);
-  const overs = findOvers(volts, voltsAtFullScale, wav.sampleRate);
+  const output = levelFigures(wav.channels, voltsPerFullScale);
+  const overs = findOvers(wav.channels, wav.sampleRate);
   const conducting: Record<string, number> = {};
   for (const [id, sums] of conductingCounts) conducting[id] = sums.counted > 0 ? sums.conducting / sums.counted : 0;
 
@@ -100,20 +95,17 @@ export function renderTake(design: Design<number>, wav: DecodedWav, options: Ren
   }
 
   return {
-    volts,
-    summary: {
-      take: wav.path,
-      design: design.name,
-      sampleRate: wav.sampleRate,
-      channels: calibrated.channels.length,
-      seconds: wav.frames / wav.sampleRate,
-      oversample: options.oversample,
-      voltsAtFullScale,
-      input,
-      output,
-      conducting,
-      overs,
-      warnings,
-    },
+    take: wav.path,
+    design: design.name,
+    sampleRate: wav.sampleRate,
+    channels: wav.channels.length,
+    seconds: wav.frames / wav.sampleRate,
+    oversample: options.oversample,
+    voltsAtFullScale: voltsPerFullScale,
+    input,
+    output,
+    conducting,
+    overs,
+    warnings,
   };
 }

@@ -1,5 +1,5 @@
 import { describe, expect, test } from 'vitest';
-import { fromVolts, peakOf, rmsOf, toDbfs, toVolts } from '../../src/audio/calibration.js';
+import { calibrate, peakOf, rmsOf, toDbfs } from '../../src/audio/calibration.js';
 import { encodeWav } from '../../src/audio/wavWrite.js';
 import { UserError } from '../../src/errors.js';
 import { expectClose } from '../helpers/expectClose.js';
@@ -15,50 +15,48 @@ function takeSamples(frames: number, seed: number): Float32Array {
   return out;
 }
 
-describe('toVolts / fromVolts', () => {
-  test('full-scale mode: volts = samples x fullScaleVolts, and back is exact', () => {
+describe('calibrate', () => {
+  test('full-scale mode: the factor is the given volts at 0 dBFS', () => {
     const take = [takeSamples(5000, 1), takeSamples(5000, 2)];
     for (const fullScaleVolts of [1, 0.5, 2.5, 1.2345, 10 / 3]) {
-      const calibrated = toVolts(take, { fullScaleVolts });
-      expect(calibrated.voltsPerFullScale).toBe(fullScaleVolts);
-      expectClose(calibrated.channels[1][17], take[1][17] * fullScaleVolts, { rtol: 1e-15 });
-      const back = fromVolts(calibrated.channels, calibrated.voltsPerFullScale);
-      // A unity design must return its input: same float32 samples and the same file bytes.
-      for (let c = 0; c < 2; c++) expect(Float32Array.from(back[c])).toEqual(take[c]);
-      expect(Buffer.from(encodeWav(back, 48_000, '24')).equals(Buffer.from(encodeWav(take, 48_000, '24')))).toBe(true);
+      const calibration = calibrate(take, { fullScaleVolts });
+      expect(calibration.voltsPerFullScale).toBe(fullScaleVolts);
+      expectClose(calibration.inputPeakVolts, peakOf(take) * fullScaleVolts, { rtol: 1e-15 });
     }
+  });
+
+  test('volts = samples x factor and back is exact for float32 samples (a unity design returns its input)', () => {
+    const take = takeSamples(5000, 3);
+    const { voltsPerFullScale } = calibrate([take], { fullScaleVolts: 10 / 3 });
+    const back = Float32Array.from(take, (x) => (x * voltsPerFullScale) * (1 / voltsPerFullScale));
+    expect(back).toEqual(take);
+    expect(Buffer.from(encodeWav([back], 48_000, '24')).equals(Buffer.from(encodeWav([take], 48_000, '24')))).toBe(true);
   });
 
   test('input-peak mode: the loudest sample of any channel becomes the requested volts', () => {
     const left = Float32Array.from([0.1, -0.2, 0.05]);
     const right = Float32Array.from([0.3, -0.4, 0.25]);
-    const calibrated = toVolts([left, right], { inputPeakVolts: 0.5 });
-    expectClose(calibrated.voltsPerFullScale, 0.5 / Math.fround(0.4), { rtol: 1e-15 });
-    expectClose(calibrated.inputPeakVolts, 0.5, { rtol: 1e-15 });
-    expectClose(peakOf(calibrated.channels), 0.5, { rtol: 1e-15 });
-    expectClose(calibrated.channels[0][1], -0.5 * (Math.fround(0.2) / Math.fround(0.4)), { rtol: 1e-15 });
-    const back = fromVolts(calibrated.channels, calibrated.voltsPerFullScale);
-    expect(Float32Array.from(back[0])).toEqual(left);
-    expect(Float32Array.from(back[1])).toEqual(right);
+    const calibration = calibrate([left, right], { inputPeakVolts: 0.5 });
+    expectClose(calibration.voltsPerFullScale, 0.5 / Math.fround(0.4), { rtol: 1e-15 });
+    expectClose(calibration.inputPeakVolts, 0.5, { rtol: 1e-15 });
   });
 
   test('full-scale mode reports the input peak in volts', () => {
-    expectClose(toVolts([Float32Array.from([0.25, -0.5])], { fullScaleVolts: 2 }).inputPeakVolts, 1, { rtol: 1e-15 });
+    expectClose(calibrate([Float32Array.from([0.25, -0.5])], { fullScaleVolts: 2 }).inputPeakVolts, 1, { rtol: 1e-15 });
   });
 
   test('a silent take cannot be scaled to an input peak', () => {
     const silent = [new Float32Array(100)];
-    expect(() => toVolts(silent, { inputPeakVolts: 0.3 }, 'quiet.wav')).toThrow(UserError);
-    expect(() => toVolts(silent, { inputPeakVolts: 0.3 }, 'quiet.wav')).toThrow(/quiet\.wav: take is silent/);
-    expect(toVolts(silent, { fullScaleVolts: 1 }).inputPeakVolts).toBe(0);
+    expect(() => calibrate(silent, { inputPeakVolts: 0.3 }, 'quiet.wav')).toThrow(UserError);
+    expect(() => calibrate(silent, { inputPeakVolts: 0.3 }, 'quiet.wav')).toThrow(/quiet\.wav: take is silent/);
+    expect(calibrate(silent, { fullScaleVolts: 1 }).inputPeakVolts).toBe(0);
   });
 
   test('scales must be positive, finite volts', () => {
     const take = [Float32Array.from([0.1])];
     for (const bad of [0, -1, Number.NaN, Number.POSITIVE_INFINITY]) {
-      expect(() => toVolts(take, { fullScaleVolts: bad })).toThrow(UserError);
-      expect(() => toVolts(take, { inputPeakVolts: bad })).toThrow(UserError);
-      expect(() => fromVolts([Float64Array.from([0.1])], bad)).toThrow(UserError);
+      expect(() => calibrate(take, { fullScaleVolts: bad })).toThrow(UserError);
+      expect(() => calibrate(take, { inputPeakVolts: bad })).toThrow(UserError);
     }
   });
 });
