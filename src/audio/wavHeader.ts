@@ -50,16 +50,35 @@ function printable(id: string): string {
   return JSON.stringify(id);
 }
 
-/** Parses and validates the header of a whole WAV file held in memory. `fileLabel` names the file in errors. */
-export function parseWavLayout(bytes: Uint8Array, fileLabel: string): WavLayout {
+/** Random access to a file's bytes: a whole file in memory, or reads from an open file. */
+export interface ByteSource {
+  readonly size: number;
+  /** `length` bytes from `offset` (the caller stays inside `size`). */
+  read(offset: number, length: number): Uint8Array;
+}
+
+export function memorySource(bytes: Uint8Array): ByteSource {
+  return { size: bytes.length, read: (offset, length) => bytes.subarray(offset, offset + length) };
+}
+
+function viewOf(bytes: Uint8Array): DataView {
+  return new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+}
+
+/**
+ * Parses and validates the header of a WAV file, reading only chunk headers and the "fmt " body
+ * from `source`. `fileLabel` names the file in errors.
+ */
+export function parseWavLayout(source: ByteSource, fileLabel: string): WavLayout {
   const fail = (problem: string): never => {
     throw new UserError(`${fileLabel}: ${problem}`);
   };
-  if (bytes.length === 0) fail('file is empty (0 bytes), not a WAV file');
-  if (bytes.length < RIFF_HEADER_BYTES) {
-    fail(`file is truncated: ${bytes.length} bytes, shorter than a RIFF/WAVE header (${RIFF_HEADER_BYTES} bytes)`);
+  const size = source.size;
+  if (size === 0) fail('file is empty (0 bytes), not a WAV file');
+  if (size < RIFF_HEADER_BYTES) {
+    fail(`file is truncated: ${size} bytes, shorter than a RIFF/WAVE header (${RIFF_HEADER_BYTES} bytes)`);
   }
-  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  const bytes = source.read(0, RIFF_HEADER_BYTES);
   const riffId = fourCc(bytes, 0);
   if (riffId === 'RIFX') fail('big-endian RIFX WAV is not supported; save it as a standard little-endian WAV');
   if (riffId === 'RF64') fail('RF64 (64-bit WAV) is not supported; save it as a standard WAV under 4 GB');
@@ -71,18 +90,21 @@ export function parseWavLayout(bytes: Uint8Array, fileLabel: string): WavLayout 
   let dataOffset = -1;
   let dataBytes = 0;
   let position = RIFF_HEADER_BYTES;
-  while ((fmt === undefined || dataOffset < 0) && position + CHUNK_HEADER_BYTES <= bytes.length) {
-    const chunkId = fourCc(bytes, position);
-    const chunkBytes = view.getUint32(position + 4, true);
+  while ((fmt === undefined || dataOffset < 0) && position + CHUNK_HEADER_BYTES <= size) {
+    const header = source.read(position, CHUNK_HEADER_BYTES);
+    const chunkId = fourCc(header, 0);
+    const chunkBytes = viewOf(header).getUint32(4, true);
     const bodyOffset = position + CHUNK_HEADER_BYTES;
-    const availableBytes = bytes.length - bodyOffset;
+    const availableBytes = size - bodyOffset;
     if (chunkBytes > availableBytes) {
       fail(
         `file is truncated: the ${printable(chunkId)} chunk at byte ${position} declares ${chunkBytes} bytes ` +
           `but only ${availableBytes} remain`,
       );
     }
-    if (chunkId === 'fmt ') fmt = readFmt(view, bodyOffset, chunkBytes, fail);
+    if (chunkId === 'fmt ') {
+      fmt = readFmt(viewOf(source.read(bodyOffset, Math.min(chunkBytes, FMT_EXTENSIBLE_MIN_BYTES))), 0, chunkBytes, fail);
+    }
     if (chunkId === 'data') {
       dataOffset = bodyOffset;
       dataBytes = chunkBytes;
@@ -91,8 +113,8 @@ export function parseWavLayout(bytes: Uint8Array, fileLabel: string): WavLayout 
   }
   if (fmt === undefined) {
     return fail(
-      dataOffset < 0 && position < bytes.length
-        ? `file is truncated: ${bytes.length - position} stray bytes where a chunk header was expected, and no "fmt " chunk`
+      dataOffset < 0 && position < size
+        ? `file is truncated: ${size - position} stray bytes where a chunk header was expected, and no "fmt " chunk`
         : 'no "fmt " chunk (the format description is missing)',
     );
   }

@@ -7,10 +7,10 @@
  * scales positive and negative codes differently, and misreads the 24-bit code -2^23; the tests use it
  * as an independent reference for the plain formats.
  */
-import { readFile } from 'node:fs/promises';
+import { closeSync, fstatSync, openSync, readSync } from 'node:fs';
 import { UserError } from '../errors.js';
 import { FLOAT32_MAX, pcmFullScale, type WavSampleFormat } from './wavFormat.js';
-import { parseWavLayout, type WavLayout } from './wavHeader.js';
+import { memorySource, parseWavLayout, type ByteSource, type WavLayout } from './wavHeader.js';
 
 export type { WavSampleFormat } from './wavFormat.js';
 
@@ -23,35 +23,89 @@ export interface DecodedWav {
   frames: number;
 }
 
-/** Reads and validates `path`; every bad input throws one UserError line naming the file and the problem. */
+/** Bytes of sample data read and decoded at a time, so a file is never held whole in memory. */
+const READ_CHUNK_BYTES = 1 << 20;
+
+/**
+ * Reads and validates `path`; every bad input throws one UserError line naming the file and the
+ * problem. The samples are read in chunks straight into the channel arrays, so reading a take needs
+ * the decoded audio plus a constant.
+ */
 export async function readWavFile(path: string): Promise<DecodedWav> {
-  const bytes = await readInputBytes(path);
-  return decodeWav(bytes, path);
+  const fd = openInput(path);
+  try {
+    const size = fstatSync(fd).size;
+    const source: ByteSource = {
+      size,
+      read(offset, length) {
+        const buffer = new Uint8Array(length);
+        readExactly(fd, buffer, offset, path);
+        return buffer;
+      },
+    };
+    const layout = parseWavLayout(source, path);
+    const channels = Array.from({ length: layout.channelCount }, () => new Float32Array(layout.frames));
+    const chunkFrames = Math.max(1, Math.floor(READ_CHUNK_BYTES / layout.blockAlign));
+    const chunk = new Uint8Array(Math.min(layout.frames, chunkFrames) * layout.blockAlign);
+    for (let start = 0; start < layout.frames; start += chunkFrames) {
+      const frames = Math.min(chunkFrames, layout.frames - start);
+      const bytes = chunk.subarray(0, frames * layout.blockAlign);
+      readExactly(fd, bytes, layout.dataOffset + start * layout.blockAlign, path);
+      decodeFrames(bytes, { ...layout, dataOffset: 0, frames }, channels, start, path);
+    }
+    return { path, sampleRate: layout.sampleRate, channels, format: layout.format, frames: layout.frames };
+  } finally {
+    closeSync(fd);
+  }
 }
 
 /** Decodes a whole WAV file held in memory; `fileLabel` names it in errors. */
 export function decodeWav(bytes: Uint8Array, fileLabel: string): DecodedWav {
-  const layout = parseWavLayout(bytes, fileLabel);
-  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
-  if (layout.format === 'float32' || layout.format === 'float64') assertUsableFloats(view, layout, fileLabel);
-  const channels: Float32Array[] = [];
-  for (let channel = 0; channel < layout.channelCount; channel++) {
-    const samples = new Float32Array(layout.frames);
-    decodeChannel(view, layout, channel, samples);
-    channels.push(samples);
-  }
+  const layout = parseWavLayout(memorySource(bytes), fileLabel);
+  const channels = Array.from({ length: layout.channelCount }, () => new Float32Array(layout.frames));
+  decodeFrames(bytes, layout, channels, 0, fileLabel);
   return { path: fileLabel, sampleRate: layout.sampleRate, channels, format: layout.format, frames: layout.frames };
 }
 
-async function readInputBytes(path: string): Promise<Uint8Array> {
+/** Checks and de-interleaves `layout.frames` frames from `bytes` into `channels` from frame `firstFrame` on. */
+function decodeFrames(bytes: Uint8Array, layout: WavLayout, channels: Float32Array[], firstFrame: number, fileLabel: string): void {
+  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  if (layout.format === 'float32' || layout.format === 'float64') assertUsableFloats(view, layout, firstFrame, fileLabel);
+  channels.forEach((samples, channel) => decodeChannel(view, layout, channel, samples.subarray(firstFrame)));
+}
+
+function describeReadError(error: unknown, path: string): UserError {
+  const code = (error as NodeJS.ErrnoException).code;
+  if (code === 'ENOENT') return new UserError(`${path}: file not found`);
+  if (code === 'EISDIR') return new UserError(`${path}: is a folder, not a WAV file`);
+  if (code === 'EACCES' || code === 'EPERM') return new UserError(`${path}: permission denied, cannot read the file`);
+  return new UserError(`${path}: cannot read the file (${code ?? String(error)})`);
+}
+
+function openInput(path: string): number {
+  let fd: number;
   try {
-    return await readFile(path);
+    fd = openSync(path, 'r');
   } catch (error) {
-    const code = (error as NodeJS.ErrnoException).code;
-    if (code === 'ENOENT') throw new UserError(`${path}: file not found`);
-    if (code === 'EISDIR') throw new UserError(`${path}: is a folder, not a WAV file`);
-    if (code === 'EACCES' || code === 'EPERM') throw new UserError(`${path}: permission denied, cannot read the file`);
-    throw new UserError(`${path}: cannot read the file (${code ?? String(error)})`);
+    throw describeReadError(error, path);
+  }
+  if (fstatSync(fd).isDirectory()) {
+    closeSync(fd);
+    throw describeReadError(Object.assign(new Error('folder'), { code: 'EISDIR' }), path);
+  }
+  return fd;
+}
+
+function readExactly(fd: number, buffer: Uint8Array, position: number, path: string): void {
+  let done = 0;
+  try {
+    while (done < buffer.length) {
+      const count = readSync(fd, buffer, done, buffer.length - done, position + done);
+      if (count === 0) throw new UserError(`${path}: file is truncated (it ended while being read)`);
+      done += count;
+    }
+  } catch (error) {
+    throw error instanceof UserError ? error : describeReadError(error, path);
   }
 }
 
@@ -99,14 +153,14 @@ function decodeChannel(view: DataView, layout: WavLayout, channel: number, out: 
  * Reports the first frame (0-based) holding NaN, +-Infinity, or (in a 64-bit file) a value beyond the
  * 32-bit float range the samples are kept in.
  */
-function assertUsableFloats(view: DataView, layout: WavLayout, fileLabel: string): void {
+function assertUsableFloats(view: DataView, layout: WavLayout, firstFrame: number, fileLabel: string): void {
   const isDouble = layout.format === 'float64';
   const sampleCount = layout.frames * layout.channelCount;
   for (let k = 0; k < sampleCount; k++) {
     const offset = layout.dataOffset + k * layout.bytesPerSample;
     const value = isDouble ? view.getFloat64(offset, true) : view.getFloat32(offset, true);
     if (!(Math.abs(value) <= FLOAT32_MAX)) {
-      const frame = Math.floor(k / layout.channelCount);
+      const frame = firstFrame + Math.floor(k / layout.channelCount);
       const channel = (k % layout.channelCount) + 1;
       throw new UserError(
         `${fileLabel}: invalid float sample (${value}) at frame index ${frame}, channel ${channel} of ${layout.channelCount}; ` +

@@ -8,11 +8,19 @@
  * reference (same rate, tight tolerance): waveform error in dB and the largest harmonic level
  * difference on a 1 kHz tone, plus the speed ratio between the two.
  *
- * Options: --seconds S (default 60), --json file, --factors 1,2,4,8,16
+ * Memory: a separate process renders a long take (default 10 minutes, `--memory-minutes M`, 0 to
+ * skip) through the same design as `render` does, and reports its peak RSS against the decoded audio.
+ *
+ * Options: --seconds S (default 60), --json file, --factors 1,2,4,8,16, --memory-minutes M
  */
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { synthesizeDemoTake } from '../audio/demoTake.js';
 import { writeFileAtomic } from '../audio/atomicWrite.js';
+import { writeWavFile } from '../audio/wavWrite.js';
 import { loadPartsLibrary } from '../design/parts.js';
 import { readDesignFile } from '../design/parseDesign.js';
 import { resolveDesign } from '../design/resolve.js';
@@ -41,7 +49,7 @@ interface FactorResult {
   clipperSpeedupVsNewton: number;
 }
 
-function parseArgs(argv: string[]): { seconds: number; json?: string; factors: OversampleFactor[] } {
+function parseArgs(argv: string[]): { seconds: number; json?: string; factors: OversampleFactor[]; memoryMinutes: number } {
   const get = (flag: string): string | undefined => {
     const index = argv.indexOf(flag);
     return index >= 0 ? argv[index + 1] : undefined;
@@ -51,7 +59,13 @@ function parseArgs(argv: string[]): { seconds: number; json?: string; factors: O
     .split(',')
     .map(Number)
     .filter((f): f is OversampleFactor => (OVERSAMPLE_FACTORS as readonly number[]).includes(f));
-  return { seconds: Number.isFinite(seconds) && seconds > 0 ? seconds : 60, json: get('--json'), factors };
+  const memoryMinutes = Number(get('--memory-minutes') ?? 10);
+  return {
+    seconds: Number.isFinite(seconds) && seconds > 0 ? seconds : 60,
+    json: get('--json'),
+    factors,
+    memoryMinutes: Number.isFinite(memoryMinutes) && memoryMinutes >= 0 ? memoryMinutes : 10,
+  };
 }
 
 function timeIt(run: () => void): number {
@@ -105,6 +119,29 @@ function clipperFidelity(design: Design<number>, factor: OversampleFactor): Pick
   };
 }
 
+interface MemoryResult {
+  minutes: number;
+  peakRssMiB: number;
+  baselineMiB: number;
+  decodedMiB: number;
+}
+
+/** Writes a long take to a temporary folder and renders it in a child process (its own peak RSS). */
+async function measureMemory(minutes: number): Promise<MemoryResult> {
+  const folder = mkdtempSync(path.join(tmpdir(), 'clipbench-bench-'));
+  try {
+    const take = synthesizeDemoTake({ sampleRate: BASE_RATE, seconds: minutes * 60 });
+    const takePath = path.join(folder, 'long-take.wav');
+    await writeWavFile(takePath, [take.volts], BASE_RATE, '24');
+    const probe = fileURLToPath(new URL('./memoryProbe.js', import.meta.url));
+    const child = spawnSync(process.execPath, [probe, DESIGN_PATH, takePath, folder], { encoding: 'utf8' });
+    if (child.status !== 0) throw new Error(`memory probe failed: ${child.stderr}`);
+    return { minutes, ...(JSON.parse(child.stdout) as Omit<MemoryResult, 'minutes'>) };
+  } finally {
+    rmSync(folder, { recursive: true, force: true });
+  }
+}
+
 async function main(): Promise<void> {
   const args = parseArgs(process.argv.slice(2));
   const design = resolveDesign(await readDesignFile(DESIGN_PATH, loadPartsLibrary()));
@@ -149,7 +186,18 @@ async function main(): Promise<void> {
         `harmonics within ${TARGET_HARMONIC_DELTA_DB} dB: ${verdict(at8.clipperHarmonicDeltaDb <= TARGET_HARMONIC_DELTA_DB)}\n`,
     );
   }
-  if (args.json) await writeFileAtomic(args.json, `${JSON.stringify({ seconds: args.seconds, sampleRate: BASE_RATE, design: design.name, results }, null, 2)}\n`);
+  let memory: MemoryResult | null = null;
+  if (args.memoryMinutes > 0) {
+    memory = await measureMemory(args.memoryMinutes);
+    const extra = memory.peakRssMiB - memory.baselineMiB - memory.decodedMiB;
+    process.stdout.write(
+      `Memory, ${memory.minutes} min take rendered at 8x: peak RSS ${memory.peakRssMiB.toFixed(0)} MiB = ` +
+        `${memory.baselineMiB.toFixed(0)} MiB before reading + ${memory.decodedMiB.toFixed(0)} MiB decoded audio + ${extra.toFixed(0)} MiB more\n`,
+    );
+  }
+  if (args.json) {
+    await writeFileAtomic(args.json, `${JSON.stringify({ seconds: args.seconds, sampleRate: BASE_RATE, design: design.name, results, memory }, null, 2)}\n`);
+  }
 }
 
 await main();

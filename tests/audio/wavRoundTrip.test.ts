@@ -1,4 +1,4 @@
-import { mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
+import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, test } from 'vitest';
@@ -166,5 +166,34 @@ describe('streamed writing', () => {
     const path = join(folder, `stream-${bits}.wav`);
     await writeWavFile(path, [samples], 48000, bits);
     expect(readFileSync(path).equals(Buffer.from(encodeWav([samples], 48000, bits)))).toBe(true);
+  });
+});
+
+describe('chunked reading', () => {
+  test('readWavFile (read in 1 MiB chunks) gives the same samples as decoding the whole file', async () => {
+    const frames = 400_001; // 2.4 MB of 24-bit stereo: several read chunks, the last one partial
+    const left = new Float32Array(frames);
+    const right = new Float32Array(frames);
+    for (let i = 0; i < frames; i++) {
+      left[i] = Math.sin(i * 0.003) * 0.8;
+      right[i] = Math.cos(i * 0.0071) * 0.5;
+    }
+    const path = join(folder, 'long-stereo.wav');
+    await writeWavFile(path, [left, right], 48000, '24');
+    const streamed = await readWavFile(path);
+    const whole = decodeWav(readFileSync(path), path);
+    expect(streamed.frames).toBe(frames);
+    expect(streamed.channels[0]).toEqual(whole.channels[0]);
+    expect(streamed.channels[1]).toEqual(whole.channels[1]);
+  });
+
+  test('a NaN far into a float file is reported at its true frame index', async () => {
+    const frames = 300_000; // 1.2 MB of mono float: the bad sample sits in the second read chunk
+    const samples = new Float32Array(frames);
+    const bytes = encodeWav([samples], 48000, '32f');
+    new DataView(bytes.buffer).setFloat32(44 + 4 * 290_000, Number.NaN, true);
+    const path = join(folder, 'late-nan.wav');
+    writeFileSync(path, bytes);
+    await expect(readWavFile(path)).rejects.toThrow(/frame index 290000/);
   });
 });
