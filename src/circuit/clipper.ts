@@ -50,8 +50,9 @@ function validateClipper(spec: ClipperStage<number>, ctx: CircuitContext): void 
 }
 
 /**
- * Validate and precompute. The solver table covers drives up to the supply voltage (the op-amp
- * before a clipper swings at most half of it each way); larger inputs are solved by Newton.
+ * Validate and precompute. The expected drive is half the supply across R (an op-amp before the
+ * clipper swings at most that far from the bias point); the solver table covers four times that
+ * (diodeNode.ts) and larger inputs are solved by Newton.
  */
 export function designClipper(spec: ClipperStage<number>, ctx: CircuitContext, options: ClipperOptions = {}): ClipperDesign {
   validateClipper(spec, ctx);
@@ -63,7 +64,7 @@ export function designClipper(spec: ClipperStage<number>, ctx: CircuitContext, o
     capFarads: spec.cap,
     sampleRate: ctx.sampleRate,
     solver: options.solver ?? 'table',
-    node: designDiodeNode(network, seriesSiemens, spec.cap, ctx.sampleRate, ctx.supplyVolts * seriesSiemens),
+    node: designDiodeNode(network, seriesSiemens, spec.cap, ctx.sampleRate, (ctx.supplyVolts / 2) * seriesSiemens),
   };
 }
 

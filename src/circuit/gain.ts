@@ -142,8 +142,9 @@ export function gainStageSmallSignal(spec: GainStage<number>, ctx: CircuitContex
 }
 
 /**
- * Validate and precompute. The feedback-diode table covers ground-leg currents up to supply / Rg
- * (the inverting input stays within the supply); larger ones go to Newton.
+ * Validate and precompute. The expected ground-leg current is half the supply across Rg (the
+ * inputs stay within the supply, biased at its middle); the feedback-diode table covers four times
+ * that (diodeNode.ts) and larger currents go to Newton.
  */
 export function designGainStage(spec: GainStage<number>, ctx: CircuitContext, options: GainStageOptions = {}): GainStageDesign {
   validateGainStage(spec, ctx);
@@ -158,7 +159,7 @@ export function designGainStage(spec: GainStage<number>, ctx: CircuitContext, op
     response = bilinearTransform(gainBandwidthPole(spec.opamp.gbwHz, 1 + rfEffective / rg), ctx.sampleRate);
     feedback = {
       admittance: bilinearTransform(groundLegAdmittance(rg, spec.cg), ctx.sampleRate),
-      node: designDiodeNode(network, 1 / spec.rf, spec.cf, ctx.sampleRate, ctx.supplyVolts / rg),
+      node: designDiodeNode(network, 1 / spec.rf, spec.cf, ctx.sampleRate, ctx.supplyVolts / 2 / rg),
     };
   }
   return { stageId: spec.id, sampleRate: ctx.sampleRate, response, feedback, solver: options.solver ?? 'table', output };

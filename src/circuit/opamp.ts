@@ -11,10 +11,15 @@
  * re-solved during slewing or saturation (a common simplification).
  */
 import { UserError } from '../errors.js';
-import { addPolynomials, analog, scalePolynomial, type AnalogTransferFunction } from '../dsp/bilinear.js';
+import {
+  addPolynomials,
+  analog,
+  scalePolynomial,
+  type AnalogTransferFunction,
+  type DigitalTransferFunction,
+} from '../dsp/bilinear.js';
 import { requirePositive } from '../dsp/firstOrderSection.js';
 import type { CircuitContext, OpampParams } from '../design/types.js';
-import type { DigitalTransferFunction } from '../dsp/bilinear.js';
 import { limitInputVolts } from './inputLimit.js';
 
 /** Width of the soft knee below each swing limit (common practice: "the last few hundred mV"). */
