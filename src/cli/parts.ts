@@ -6,7 +6,7 @@ import { formatValue } from '../design/values.js';
 import { formatRows } from '../report/table.js';
 
 function formatEngineering(value: number, unit: string): string {
-  return Number.isFinite(value) ? `${formatValue(value)} ${unit}` : 'unlimited';
+  return Number.isFinite(value) ? formatValue(value, unit) : 'unlimited';
 }
 
 export function registerPartsCommand(program: Command): void {
@@ -51,7 +51,7 @@ export function registerPartsCommand(program: Command): void {
               formatEngineering(o.gbwHz, 'Hz'),
               Number.isFinite(o.slewRateVoltsPerSecond) ? `${(o.slewRateVoltsPerSecond / 1e6).toPrecision(3)} V/us` : 'unlimited',
               `${o.headroomLowVolts} / ${o.headroomHighVolts} V`,
-              `${o.supplyMinVolts}-${o.supplyMaxVolts} V`,
+              Number.isFinite(o.supplyMaxVolts) ? `${o.supplyMinVolts}-${o.supplyMaxVolts} V` : 'any',
               o.source,
             ]),
           ),
