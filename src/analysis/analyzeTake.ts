@@ -16,6 +16,7 @@ import { truePeakDb } from '../dsp/truePeak.js';
 import { welch } from '../dsp/welch.js';
 import { measureHarmonics, type HarmonicReport } from './harmonics.js';
 import { monoFoldDown } from '../audio/mixdown.js';
+import { peakOf, rmsOf } from '../audio/calibration.js';
 
 export interface SpectrumPoint {
   hz: number;
@@ -129,19 +130,10 @@ export function detectSteadyTone(signal: Float64Array, sampleRate: number): numb
 
 export function analyzeTake(wav: DecodedWav, options: AnalyzeOptions = {}): AnalyzeReport {
   const { channels, sampleRate, frames } = wav;
-  let peak = 0;
-  let sumSquares = 0;
-  for (const channel of channels) {
-    for (let i = 0; i < channel.length; i++) {
-      const v = channel[i];
-      const magnitude = Math.abs(v);
-      if (magnitude > peak) peak = magnitude;
-      sumSquares += v * v;
-    }
-  }
+  const peak = peakOf(channels);
   const sampleCount = frames * channels.length;
   const peakDbfs = toDb(peak, 20);
-  const rmsDbfs = sampleCount > 0 ? toDb(Math.sqrt(sumSquares / sampleCount), 20) : null;
+  const rmsDbfs = sampleCount > 0 ? toDb(rmsOf(channels), 20) : null;
   const mono = monoFoldDown(channels);
 
   let toneSource: ToneSource = 'none';

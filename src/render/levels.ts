@@ -1,4 +1,5 @@
 /** Level statistics of multichannel signals held in digital full scale. */
+import { peakOf, rmsOf } from '../audio/calibration.js';
 
 export interface LevelStats {
   peakVolts: number;
@@ -9,19 +10,8 @@ export interface LevelStats {
 
 /** Peak, RMS and crest factor over all channels, in volts (`voltsPerFullScale` x the samples). */
 export function measureLevels(channels: readonly (Float32Array | Float64Array)[], voltsPerFullScale: number): LevelStats {
-  let peak = 0;
-  let sumSquares = 0;
-  let count = 0;
-  for (const channel of channels) {
-    for (let i = 0; i < channel.length; i++) {
-      const x = channel[i];
-      const magnitude = Math.abs(x);
-      if (magnitude > peak) peak = magnitude;
-      sumSquares += x * x;
-    }
-    count += channel.length;
-  }
-  const rms = count > 0 ? Math.sqrt(sumSquares / count) : 0;
+  const peak = peakOf(channels);
+  const rms = rmsOf(channels);
   return {
     peakVolts: peak * voltsPerFullScale,
     rmsVolts: rms * voltsPerFullScale,
