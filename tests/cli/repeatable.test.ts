@@ -1,0 +1,67 @@
+/**
+ * Repeated runs are byte-identical (issue 6 "Files"; the project rule: same inputs give
+ * bit-identical outputs). `render` has its own repeat test in tests/cli/render.test.ts; here
+ * `measure --json`, `analyze --json`, `check --json` and every file `compare` writes.
+ */
+import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, test } from 'vitest';
+import { encodeWav } from '../../src/audio/wavWrite.js';
+import { PROJECT_ROOT, runCli } from '../helpers/cli.js';
+
+const NIGHT_DRIVE = path.join(PROJECT_ROOT, 'fixtures', 'designs', 'night-drive.json');
+const dir = mkdtempSync(path.join(tmpdir(), 'clipbench-repeat-'));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+const take = path.join(dir, 'take.wav');
+
+beforeAll(() => {
+  // 1 s at 48 kHz: a decaying 196 Hz tone with some third harmonic (a plucked G, roughly).
+  const x = new Float32Array(48000);
+  for (let n = 0; n < x.length; n++) {
+    const t = n / 48000;
+    x[n] = 0.4 * Math.exp(-3 * t) * (Math.sin(2 * Math.PI * 196 * t) + 0.2 * Math.sin(2 * Math.PI * 588 * t));
+  }
+  writeFileSync(take, encodeWav([x], 48000, '24'));
+});
+
+/** Runs the same command twice with `{run}` replaced by run-a / run-b and returns both runs' outputs. */
+function twice(args: (run: string) => string[]): [string, string] {
+  return ['run-a', 'run-b'].map((run) => {
+    const result = runCli(args(path.join(dir, run)));
+    expect(result.status, result.stderr).toBe(0);
+    return result.stdout;
+  }) as [string, string];
+}
+
+function sameFile(a: string, b: string): void {
+  expect(readFileSync(a).equals(readFileSync(b)), `${a} vs ${b}`).toBe(true);
+}
+
+describe('repeated runs give byte-identical output', () => {
+  test('measure --json', () => {
+    twice((run) => ['measure', NIGHT_DRIVE, '--oversample', '2', '--json', `${run}-measure.json`]);
+    sameFile(path.join(dir, 'run-a-measure.json'), path.join(dir, 'run-b-measure.json'));
+  });
+
+  test('analyze --json', () => {
+    twice((run) => ['analyze', take, '--json', `${run}-analyze.json`]);
+    sameFile(path.join(dir, 'run-a-analyze.json'), path.join(dir, 'run-b-analyze.json'));
+  });
+
+  test('check --json (stdout)', () => {
+    const [a, b] = twice(() => ['check', NIGHT_DRIVE, '--json']);
+    expect(a.length).toBeGreaterThan(0);
+    expect(b).toBe(a);
+  });
+
+  test('compare: summary.json, the page and every WAV and sidecar', () => {
+    twice((run) => ['compare', NIGHT_DRIVE, take, '--vary', 'clip.diode=1n4148,1n34a', '-o', `${run}-compare`, '--oversample', '2', '--threads', '2']);
+    const a = path.join(dir, 'run-a-compare');
+    const b = path.join(dir, 'run-b-compare');
+    const files = readdirSync(a).sort();
+    expect(files).toContain('summary.json');
+    expect(readdirSync(b).sort()).toEqual(files);
+    for (const file of files) sameFile(path.join(a, file), path.join(b, file));
+  });
+});
