@@ -11,7 +11,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { encodeWav } from '../../src/audio/wavWrite.js';
 import { float32Bytes, int16Bytes, simpleWav } from '../audio/wavBytes.js';
-import { PROJECT_ROOT, runCli, type CliResult } from '../helpers/cli.js';
+import { PROJECT_ROOT, runCliAsync, type CliResult } from '../helpers/cli.js';
 
 const NIGHT_DRIVE = path.join(PROJECT_ROOT, 'fixtures', 'designs', 'night-drive.json');
 const dir = mkdtempSync(path.join(tmpdir(), 'clipbench-badinput-'));
@@ -91,25 +91,25 @@ beforeAll(() => {
 
 // Every class through analyze; the render and compare paths (worker threads, one line per take)
 // with a few of them (each CLI run costs about a second of start-up).
-describe.each(BAD_WAVS.map((wav) => [wav.name, wav] as const))('bad WAV %s', (_name, wav) => {
-  test('analyze: one line naming the file and the problem, no JSON written', () => {
+describe.concurrent.each(BAD_WAVS.map((wav) => [wav.name, wav] as const))('bad WAV %s', (_name, wav) => {
+  test('analyze: one line naming the file and the problem, no JSON written', async () => {
     const json = at(`${wav.name}.json`);
-    expectOneLineFailure(runCli(['analyze', at(wav.name), '--json', json]), null, named(at(wav.name)), wav.problem);
+    expectOneLineFailure(await runCliAsync(['analyze', at(wav.name), '--json', json]), null, named(at(wav.name)), wav.problem);
     expect(existsSync(json)).toBe(false);
   });
 });
 
 const badWav = (name: string) => BAD_WAVS.find((wav) => wav.name === name)!;
 
-describe('bad WAVs through render and compare', () => {
-  test.each(['truncated.wav', 'nan.wav', 'absurd-rate.wav'])('render %s: one line naming the take, nothing written', (name) => {
+describe.concurrent('bad WAVs through render and compare', () => {
+  test.each(['truncated.wav', 'nan.wav', 'absurd-rate.wav'])('render %s: one line naming the take, nothing written', async (name) => {
     const out = freshOut();
-    expectOneLineFailure(runCli(['render', NIGHT_DRIVE, at(name), '-o', out, '--oversample', '2']), out, named(at(name)), badWav(name).problem);
+    expectOneLineFailure(await runCliAsync(['render', NIGHT_DRIVE, at(name), '-o', out, '--oversample', '2']), out, named(at(name)), badWav(name).problem);
   });
 
-  test.each(['empty.wav', 'quad.wav'])('compare %s: one line naming the take, nothing written', (name) => {
+  test.each(['empty.wav', 'quad.wav'])('compare %s: one line naming the take, nothing written', async (name) => {
     const out = freshOut();
-    expectOneLineFailure(runCli(['compare', NIGHT_DRIVE, at(name), '--vary', 'drive=0.2,0.8', '-o', out, '--oversample', '2']), out, named(at(name)), badWav(name).problem);
+    expectOneLineFailure(await runCliAsync(['compare', NIGHT_DRIVE, at(name), '--vary', 'drive=0.2,0.8', '-o', out, '--oversample', '2']), out, named(at(name)), badWav(name).problem);
   });
 });
 
@@ -175,70 +175,70 @@ beforeAll(() => {
   for (const design of BAD_DESIGNS) writeFileSync(at(design.name), design.text());
 });
 
-describe.each(BAD_DESIGNS.map((design) => [design.name, design] as const))('bad design %s', (_name, design) => {
-  test('check: one line naming the file, the JSON path and the problem', () => {
-    expectOneLineFailure(runCli(['check', at(design.name), '--json']), null, named(at(design.name)), ...design.problem);
+describe.concurrent.each(BAD_DESIGNS.map((design) => [design.name, design] as const))('bad design %s', (_name, design) => {
+  test('check: one line naming the file, the JSON path and the problem', async () => {
+    expectOneLineFailure(await runCliAsync(['check', at(design.name), '--json']), null, named(at(design.name)), ...design.problem);
   });
 });
 
 // The parser is shared: every class through check, one each through render, measure and compare.
-describe('bad designs through render, measure and compare', () => {
+describe.concurrent('bad designs through render, measure and compare', () => {
   const badDesign = (name: string) => BAD_DESIGNS.find((d) => d.name === name)!;
 
-  test('render with a JSON syntax error: one line with line and column, nothing written', () => {
+  test('render with a JSON syntax error: one line with line and column, nothing written', async () => {
     const out = freshOut();
-    expectOneLineFailure(runCli(['render', at('syntax.json'), goodTake, '-o', out, '--oversample', '2']), out, named(at('syntax.json')), ...badDesign('syntax.json').problem);
+    expectOneLineFailure(await runCliAsync(['render', at('syntax.json'), goodTake, '-o', out, '--oversample', '2']), out, named(at('syntax.json')), ...badDesign('syntax.json').problem);
   });
 
-  test('measure with an unknown part: one line with the suggestion, no JSON written', () => {
+  test('measure with an unknown part: one line with the suggestion, no JSON written', async () => {
     const json = at('measure-unknown-part.json.out');
-    expectOneLineFailure(runCli(['measure', at('unknown-part.json'), '--json', json]), null, named(at('unknown-part.json')), ...badDesign('unknown-part.json').problem);
+    expectOneLineFailure(await runCliAsync(['measure', at('unknown-part.json'), '--json', json]), null, named(at('unknown-part.json')), ...badDesign('unknown-part.json').problem);
     expect(existsSync(json)).toBe(false);
   });
 
-  test('compare with a knob out of range: one line, nothing written', () => {
+  test('compare with a knob out of range: one line, nothing written', async () => {
     const out = freshOut();
-    expectOneLineFailure(runCli(['compare', at('knob-range.json'), goodTake, '--vary', 'level=0.2,0.8', '-o', out, '--oversample', '2']), out, named(at('knob-range.json')), ...badDesign('knob-range.json').problem);
+    expectOneLineFailure(await runCliAsync(['compare', at('knob-range.json'), goodTake, '--vary', 'level=0.2,0.8', '-o', out, '--oversample', '2']), out, named(at('knob-range.json')), ...badDesign('knob-range.json').problem);
   });
 });
 
 // ---- option values ----------------------------------------------------------------------------
-describe('bad option values name the flag', () => {
+describe.concurrent('bad option values name the flag', () => {
   test.each([
     ['--oversample', '3', /--oversample: "3" is not one of 1, 2, 4, 8, 16/],
     ['--bits', '20', /--bits: "20" is not one of 16, 24, 32f/],
     ['--full-scale', '-1', /--full-scale: "-1" is not a positive number/],
-  ])('render %s %s', (flag, value, problem) => {
+  ])('render %s %s', async (flag, value, problem) => {
     const out = freshOut();
-    expectOneLineFailure(runCli(['render', NIGHT_DRIVE, goodTake, '-o', out, flag, value]), out, problem);
+    expectOneLineFailure(await runCliAsync(['render', NIGHT_DRIVE, goodTake, '-o', out, flag, value]), out, problem);
   });
 
-  test.each([['--bits', '8', /--bits: "8" is not one of 16, 24, 32f/]])('compare %s %s', (flag, value, problem) => {
+  test.each([['--bits', '8', /--bits: "8" is not one of 16, 24, 32f/]])('compare %s %s', async (flag, value, problem) => {
     const out = freshOut();
-    expectOneLineFailure(runCli(['compare', NIGHT_DRIVE, goodTake, '--vary', 'drive=0.2,0.8', '-o', out, flag, value]), out, problem);
+    expectOneLineFailure(await runCliAsync(['compare', NIGHT_DRIVE, goodTake, '--vary', 'drive=0.2,0.8', '-o', out, flag, value]), out, problem);
   });
 
   test.each([
     ['--level', '0', /--level: "0" is not a positive number/],
     ['--freq', '1e9', /--freq: .*outside the audio band/],
     ['--oversample', '32', /--oversample: "32"/],
-  ])('measure %s %s', (flag, value, problem) => {
+  ])('measure %s %s', async (flag, value, problem) => {
     const json = at(`measure-flag-${flag}-${value}.json`);
-    expectOneLineFailure(runCli(['measure', NIGHT_DRIVE, flag, value, '--json', json]), null, problem);
+    expectOneLineFailure(await runCliAsync(['measure', NIGHT_DRIVE, flag, value, '--json', json]), null, problem);
     expect(existsSync(json)).toBe(false);
   });
 
-  test('check --input-peak', () => {
-    expectOneLineFailure(runCli(['check', NIGHT_DRIVE, '--input-peak', '-2']), null, /--input-peak/);
+  test('check --input-peak', async () => {
+    expectOneLineFailure(await runCliAsync(['check', NIGHT_DRIVE, '--input-peak', '-2']), null, /--input-peak/);
   });
 
-  test('parts --kind bogus', () => {
-    expectOneLineFailure(runCli(['parts', '--kind', 'bogus']), null, /--kind: "bogus" is not one of diode, opamp/);
+  test('parts --kind bogus', async () => {
+    expectOneLineFailure(await runCliAsync(['parts', '--kind', 'bogus']), null, /--kind: "bogus" is not one of diode, opamp/);
   });
 });
 
 // ---- an output that is an input ---------------------------------------------------------------
-describe('an output path equal to an input is refused and the input is untouched', () => {
+describe.concurrent('an output path equal to an input is refused and the input is untouched', () => {
   function victimCopy(folder: string, name: string, source: string): { file: string; before: Buffer } {
     mkdirSync(folder, { recursive: true });
     const file = path.join(folder, name);
@@ -246,30 +246,30 @@ describe('an output path equal to an input is refused and the input is untouched
     return { file, before: readFileSync(file) };
   }
 
-  test('measure --json onto the design file', () => {
+  test('measure --json onto the design file', async () => {
     const { file, before } = victimCopy(at('measure-victim'), 'design.json', NIGHT_DRIVE);
-    expectOneLineFailure(runCli(['measure', file, '--json', file]), null, named(file), /input|overwrite/i);
+    expectOneLineFailure(await runCliAsync(['measure', file, '--json', file]), null, named(file), /input|overwrite/i);
     expect(readFileSync(file).equals(before)).toBe(true);
   });
 
-  test('analyze --json onto the WAV it reads', () => {
+  test('analyze --json onto the WAV it reads', async () => {
     const { file, before } = victimCopy(at('analyze-victim'), 'take.wav', goodTake);
-    expectOneLineFailure(runCli(['analyze', file, '--json', file]), null, named(file), /input|overwrite/i);
+    expectOneLineFailure(await runCliAsync(['analyze', file, '--json', file]), null, named(file), /input|overwrite/i);
     expect(readFileSync(file).equals(before)).toBe(true);
   });
 
-  test('compare whose summary.json would be the design file', () => {
+  test('compare whose summary.json would be the design file', async () => {
     const folder = at('compare-victim');
     const { file, before } = victimCopy(folder, 'summary.json', NIGHT_DRIVE);
-    expectOneLineFailure(runCli(['compare', file, goodTake, '--vary', 'drive=0.2,0.8', '-o', folder, '--oversample', '2']), null, named(file), /input|overwrite/i);
+    expectOneLineFailure(await runCliAsync(['compare', file, goodTake, '--vary', 'drive=0.2,0.8', '-o', folder, '--oversample', '2']), null, named(file), /input|overwrite/i);
     expect(readFileSync(file).equals(before)).toBe(true);
     expect(readdirSync(folder)).toEqual(['summary.json']);
   });
 });
 
-describe('--debug', () => {
-  test('adds the stack trace after the one-line message', () => {
-    const result = runCli(['check', at('unknown-part.json'), '--debug']);
+describe.concurrent('--debug', () => {
+  test('adds the stack trace after the one-line message', async () => {
+    const result = await runCliAsync(['check', at('unknown-part.json'), '--debug']);
     expect(result.status).not.toBe(0);
     const [first] = result.stderr.split('\n');
     expect(first).toMatch(/^clipbench: .*unknown diode "1n4184"/);

@@ -8,7 +8,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { encodeWav } from '../../src/audio/wavWrite.js';
-import { PROJECT_ROOT, runCli } from '../helpers/cli.js';
+import { PROJECT_ROOT, runCliAsync } from '../helpers/cli.js';
 
 const NIGHT_DRIVE = path.join(PROJECT_ROOT, 'fixtures', 'designs', 'night-drive.json');
 const dir = mkdtempSync(path.join(tmpdir(), 'clipbench-repeat-'));
@@ -25,38 +25,36 @@ beforeAll(() => {
   writeFileSync(take, encodeWav([x], 48000, '24'));
 });
 
-/** Runs the same command twice with `{run}` replaced by run-a / run-b and returns both runs' outputs. */
-function twice(args: (run: string) => string[]): [string, string] {
-  return ['run-a', 'run-b'].map((run) => {
-    const result = runCli(args(path.join(dir, run)));
-    expect(result.status, result.stderr).toBe(0);
-    return result.stdout;
-  }) as [string, string];
+/** Runs the same command twice (at once) with its output under run-a / run-b; returns both stdouts. */
+async function twice(args: (run: string) => string[]): Promise<[string, string]> {
+  const results = await Promise.all(['run-a', 'run-b'].map((run) => runCliAsync(args(path.join(dir, run)))));
+  for (const result of results) expect(result.status, result.stderr).toBe(0);
+  return [results[0]!.stdout, results[1]!.stdout];
 }
 
 function sameFile(a: string, b: string): void {
   expect(readFileSync(a).equals(readFileSync(b)), `${a} vs ${b}`).toBe(true);
 }
 
-describe('repeated runs give byte-identical output', () => {
-  test('measure --json', () => {
-    twice((run) => ['measure', NIGHT_DRIVE, '--oversample', '2', '--json', `${run}-measure.json`]);
+describe.concurrent('repeated runs give byte-identical output', () => {
+  test('measure --json', async () => {
+    await twice((run) => ['measure', NIGHT_DRIVE, '--oversample', '2', '--json', `${run}-measure.json`]);
     sameFile(path.join(dir, 'run-a-measure.json'), path.join(dir, 'run-b-measure.json'));
   });
 
-  test('analyze --json', () => {
-    twice((run) => ['analyze', take, '--json', `${run}-analyze.json`]);
+  test('analyze --json', async () => {
+    await twice((run) => ['analyze', take, '--json', `${run}-analyze.json`]);
     sameFile(path.join(dir, 'run-a-analyze.json'), path.join(dir, 'run-b-analyze.json'));
   });
 
-  test('check --json (stdout)', () => {
-    const [a, b] = twice(() => ['check', NIGHT_DRIVE, '--json']);
+  test('check --json (stdout)', async () => {
+    const [a, b] = await twice(() => ['check', NIGHT_DRIVE, '--json']);
     expect(a.length).toBeGreaterThan(0);
     expect(b).toBe(a);
   });
 
-  test('compare: summary.json, the page and every WAV and sidecar', () => {
-    twice((run) => ['compare', NIGHT_DRIVE, take, '--vary', 'clip.diode=1n4148,1n34a', '-o', `${run}-compare`, '--oversample', '2', '--threads', '2']);
+  test('compare: summary.json, the page and every WAV and sidecar', async () => {
+    await twice((run) => ['compare', NIGHT_DRIVE, take, '--vary', 'clip.diode=1n4148,1n34a', '-o', `${run}-compare`, '--oversample', '2', '--threads', '2']);
     const a = path.join(dir, 'run-a-compare');
     const b = path.join(dir, 'run-b-compare');
     const files = readdirSync(a).sort();
