@@ -5,5 +5,6 @@ export default defineConfig({
     include: ['tests/**/*.test.ts'],
     testTimeout: 60_000,
     pool: 'forks',
+    reporters: ['default', './tests/helpers/countReporter.ts'],
   },
 });
