@@ -67,7 +67,6 @@ export function buildChain(design: Design<number>, options: ChainOptions): Chain
     }
   }
 
-  const fastBlock = new Float64Array(blockSize * oversample);
   const latencySamples = segments.reduce(
     (sum, segment) =>
       sum +
@@ -86,7 +85,8 @@ export function buildChain(design: Design<number>, options: ChainOptions): Chain
           for (const stage of segment.stages) stage.process(block);
           continue;
         }
-        const fast = fastBlock.subarray(0, block.length * oversample);
+        // The oversampler's own block: downsampling reads it without a copy.
+        const fast = segment.oversampler.oversampledBlock(block.length);
         segment.oversampler.upsample(block, fast);
         for (const stage of segment.stages) stage.process(fast);
         segment.oversampler.downsample(fast, block);

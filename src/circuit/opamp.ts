@@ -96,7 +96,8 @@ export class OpampStage implements RailMeter {
   railSamples = 0;
   private readonly b = new Float64Array(MAX_LOOP_ORDER + 1);
   private readonly a = new Float64Array(MAX_LOOP_ORDER + 1);
-  private readonly state = new Float64Array(MAX_LOOP_ORDER + 1); // DF2T states, then the slew memory
+  // Loop state (see `process`): u, s1, s2, the last loop output, then the slew memory.
+  private readonly state = new Float64Array(MAX_LOOP_ORDER + 2);
 
   constructor(
     response: DigitalTransferFunction,
@@ -114,6 +115,12 @@ export class OpampStage implements RailMeter {
     this.railSamples = 0;
   }
 
+  /**
+   * The loop is direct form II transposed (y = b0 x + s0, s0 <- b1 x - a1 y + s1, ...) with s0
+   * substituted: y_n = (b0 x_n + u) - a1 y_{n-1}, u = b1 x_{n-1} + s1. Same filter, but the chain
+   * from one output to the next is one multiply and one subtraction, so the loop runs at the speed
+   * of its arithmetic rather than of that chain.
+   */
   process(block: Float64Array): void {
     const { upperVolts, lowerVolts, upperKneeVolts, lowerKneeVolts, maxStepVolts } = this.limits;
     const upperJoint = upperVolts - upperKneeVolts;
@@ -130,16 +137,17 @@ export class OpampStage implements RailMeter {
     const a2 = a[2];
     const a3 = a[3];
     const state = this.state;
-    let s0 = state[0];
+    let u = state[0];
     let s1 = state[1];
     let s2 = state[2];
-    let previous = state[3];
+    let loop = state[3];
+    let previous = state[4];
     let rail = 0;
     for (let i = 0; i < block.length; i++) {
       const x = limitInputVolts(block[i]);
-      const loop = b0 * x + s0;
-      s0 = b1 * x - a1 * loop + s1;
-      s1 = b2 * x - a2 * loop + s2;
+      loop = b0 * x + u - a1 * loop;
+      u = b1 * x + s1;
+      s1 = b2 * x + s2 - a2 * loop;
       s2 = b3 * x - a3 * loop;
       let y = loop;
       const step = y - previous;
@@ -155,10 +163,11 @@ export class OpampStage implements RailMeter {
       }
       block[i] = y;
     }
-    state[0] = s0;
+    state[0] = u;
     state[1] = s1;
     state[2] = s2;
-    state[3] = previous;
+    state[3] = loop;
+    state[4] = previous;
     this.railSamples += rail;
   }
 }

@@ -12,7 +12,7 @@
  * stage delays (2 M_j + pad_j) / 2^j sum to an integer.
  */
 import { designHalfband } from './halfband.js';
-import { createHalfbandDecimator, createHalfbandInterpolator, type HalfbandFilter } from './halfbandFilters.js';
+import { HalfbandDecimator, HalfbandInterpolator } from './halfbandFilters.js';
 
 export type OversampleFactor = 1 | 2 | 4 | 8 | 16;
 
@@ -36,6 +36,12 @@ export interface Oversampler {
    * most maxBlockSize samples).
    */
   downsample(input: Float64Array, output: Float64Array): void;
+  /**
+   * A view of `factor * baseLength` samples of the oversampler's own storage. Upsampling into it,
+   * processing it in place and downsampling from it saves the copy into the decimator's input. The
+   * full-size view is made once; only other lengths allocate a new view.
+   */
+  oversampledBlock(baseLength: number): Float64Array;
   reset(): void;
 }
 
@@ -69,11 +75,16 @@ export function createOversampler(
   const latencyBaseSamples = (unpadded + padding) / factor;
 
   // interpolators[i] and decimators[i] run between 2^i and 2^(i+1) times the base rate.
-  const interpolators = designs.map((d, i) => createHalfbandInterpolator(d, maxBlockSize * 2 ** i));
+  const interpolators = designs.map((d, i) => new HalfbandInterpolator(d, maxBlockSize * 2 ** i));
   const decimators = designs.map((d, i) => {
     const pad = (padding >> (stageCount - 1 - i)) & 1;
-    return createHalfbandDecimator(d, maxBlockSize * 2 ** i, pad === 1 ? 1 : 0);
+    return new HalfbandDecimator(d, maxBlockSize * 2 ** i, pad === 1 ? 1 : 0);
   });
+  // The top decimator's input area doubles as the oversampled block (factor 1: a plain buffer).
+  const top = decimators[stageCount - 1];
+  const fastStorage = top ? top.buffer : new Float64Array(maxBlockSize);
+  const fastOffset = top ? top.historyLength : 0;
+  const fullBlock = fastStorage.subarray(fastOffset, fastOffset + maxBlockSize * factor);
 
   function checkLengths(baseLength: number, fastLength: number, what: string): void {
     if (baseLength > maxBlockSize) {
@@ -87,6 +98,11 @@ export function createOversampler(
   return {
     factor,
     latencyBaseSamples,
+    oversampledBlock(baseLength: number): Float64Array {
+      if (baseLength === maxBlockSize) return fullBlock;
+      checkLengths(baseLength, Infinity, 'block');
+      return fastStorage.subarray(fastOffset, fastOffset + baseLength * factor);
+    },
     upsample(input: Float64Array, output: Float64Array): void {
       const count = input.length;
       checkLengths(count, output.length, 'upsample');
@@ -95,27 +111,27 @@ export function createOversampler(
         return;
       }
       interpolators[0].buffer.set(input, interpolators[0].historyLength);
-      for (let i = 0; i < stageCount; i++) {
-        const next: HalfbandFilter | undefined = interpolators[i + 1];
-        if (next) interpolators[i].run(count << i, next.buffer, next.historyLength);
-        else interpolators[i].run(count << i, output, 0);
+      for (let i = 0; i < stageCount - 1; i++) {
+        const next = interpolators[i + 1];
+        interpolators[i].run(count << i, next.buffer, next.historyLength);
       }
+      interpolators[stageCount - 1].run(count << (stageCount - 1), output, 0);
     },
     downsample(input: Float64Array, output: Float64Array): void {
       const count = output.length;
       checkLengths(count, input.length, 'downsample');
-      const top = decimators[stageCount - 1];
       if (!top) {
         for (let n = 0; n < count; n++) output[n] = input[n];
         return;
       }
       const fastCount = count * factor;
-      for (let n = 0; n < fastCount; n++) top.buffer[top.historyLength + n] = input[n];
-      for (let i = stageCount - 1; i >= 0; i--) {
-        const next: HalfbandFilter | undefined = decimators[i - 1];
-        if (next) decimators[i].run(count << i, next.buffer, next.historyLength);
-        else decimators[i].run(count, output, 0);
+      const inPlace = input.buffer === fastStorage.buffer && input.byteOffset === fullBlock.byteOffset;
+      if (!inPlace) top.buffer.set(input.length === fastCount ? input : input.subarray(0, fastCount), top.historyLength);
+      for (let i = stageCount - 1; i > 0; i--) {
+        const next = decimators[i - 1];
+        decimators[i].run(count << i, next.buffer, next.historyLength);
       }
+      decimators[0].run(count, output, 0);
     },
     reset(): void {
       for (const filter of interpolators) filter.reset();

@@ -169,6 +169,24 @@ describe('oversampler', () => {
     }
   });
 
+  it('processing in the oversampler\'s own block gives the same bits as a separate buffer', () => {
+    for (const factor of [1, 2, 8] as const) {
+      const input = noise(1000, 3);
+      const viaCopy = roundTrip(factor, input, 48000, 100);
+      const os = createOversampler(factor, BLOCK, 48000);
+      const inPlace = new Float64Array(input.length);
+      for (let start = 0; start < input.length; start += 100) {
+        const end = Math.min(input.length, start + 100);
+        const fast = os.oversampledBlock(end - start);
+        expect(fast.length).toBe((end - start) * factor);
+        os.upsample(input.subarray(start, end), fast);
+        os.downsample(fast, inPlace.subarray(start, end));
+      }
+      expect(inPlace).toEqual(viaCopy);
+      expect(os.oversampledBlock(BLOCK)).toBe(os.oversampledBlock(BLOCK)); // the full-size view is made once
+    }
+  });
+
   it('reset returns to the quiescent state (same output again)', () => {
     const os = createOversampler(4, 256);
     const input = noise(256, 7);
