@@ -27,6 +27,6 @@ export function createRcFilter(design: DigitalTransferFunction): Processor {
 }
 
 function validateRcFilter(spec: RcStage<number>): void {
-  requirePositive(spec.r, `stage "${spec.id}" r`, 'ohms');
+  requirePositive(spec.r, `stage "${spec.id}" r`, 'ohms', true); // 0 ohm: no filtering (high-pass: no output)
   requirePositive(spec.c, `stage "${spec.id}" c`, 'farads');
 }

@@ -9,7 +9,7 @@ import type { CircuitContext, ToneStage } from '../design/types.js';
 import type { Processor } from './processor.js';
 
 export function toneStageSmallSignal(spec: ToneStage<number>, _ctx?: CircuitContext): AnalogTransferFunction {
-  requirePositive(spec.r, `stage "${spec.id}" resistance (fixed + pot)`, 'ohms');
+  requirePositive(spec.r, `stage "${spec.id}" resistance (fixed + pot)`, 'ohms', true); // 0 ohm: flat
   requirePositive(spec.cap, `stage "${spec.id}" cap`, 'farads');
   return analog([1], [1, spec.r * spec.cap]);
 }

@@ -1,6 +1,7 @@
 /** `clipbench measure <design.json>`: THD, level sweep, responses, transfer curve, aliasing. */
 import type { Command } from 'commander';
 import { UserError } from '../errors.js';
+import { assertNotAnInput } from '../audio/atomicWrite.js';
 import { loadPartsLibrary } from '../design/parts.js';
 import { readDesignFile } from '../design/parseDesign.js';
 import { resolveDesign } from '../design/resolve.js';
@@ -84,6 +85,8 @@ export function registerMeasureCommand(program: Command): void {
     .option('--html <file>', 'write a self-contained HTML report (plots also saved as SVG beside it)')
     .option('--parts <file>', 'extra parts library (JSON)')
     .action(async (designPath: string, flags: MeasureFlags) => {
+      const inputs = [designPath, ...(flags.parts ? [flags.parts] : [])];
+      for (const output of [flags.json, flags.html]) if (output) assertNotAnInput(output, inputs);
       const parts = loadPartsLibrary(flags.parts);
       const design = resolveDesign(await readDesignFile(designPath, parts, flags.set ?? []));
       const freqHz = parsePositiveNumber('--freq', flags.freq, 'Hz');
@@ -95,7 +98,6 @@ export function registerMeasureCommand(program: Command): void {
         oversample: parseOversample(flags.oversample),
         aliasSweep: flags.aliasSweep === true,
       });
-      const inputs = [designPath, ...(flags.parts ? [flags.parts] : [])];
       if (flags.json) await writeMeasureJson(flags.json, report, inputs);
       if (flags.html) await writeMeasureHtml(flags.html, report, inputs);
       process.stdout.write(summarizeMeasurement(report));

@@ -41,7 +41,8 @@ export function registerRenderCommand(program: Command): void {
       const problems: string[] = [];
       outcomes.forEach((outcome, index) => {
         if (!outcome.ok) {
-          problems.push(`${inputs[index]}: ${outcome.message}`);
+          // User errors already name their file; others get the take's name in front.
+          problems.push(outcome.userError ? outcome.message : `${inputs[index]}: ${outcome.message}`);
           return;
         }
         const s = outcome.result.summary;

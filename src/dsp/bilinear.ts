@@ -20,8 +20,15 @@ export interface DigitalTransferFunction {
   readonly sampleRate: number;
 }
 
+/** Drops highest-order zero coefficients (a vanished R C term must not add a pole), keeping one. */
+function trimPolynomial(p: readonly number[]): number[] {
+  let length = p.length;
+  while (length > 1 && p[length - 1] === 0) length--;
+  return p.slice(0, Math.max(1, length));
+}
+
 export function analog(b: readonly number[], a: readonly number[]): AnalogTransferFunction {
-  return { domain: 'analog', b: [...b], a: [...a] };
+  return { domain: 'analog', b: trimPolynomial(b), a: trimPolynomial(a) };
 }
 
 /** Polynomial product, coefficients in ascending powers. */

@@ -6,10 +6,14 @@ export function rcCornerHz(resistanceOhms: number, capacitanceFarads: number): n
   return 1 / (2 * Math.PI * resistanceOhms * capacitanceFarads);
 }
 
+/** Above this fraction of Nyquist a corner is not pre-warped (tan() runs away near Nyquist). */
+const PREWARP_LIMIT = 0.9;
+
 /**
  * Discretise a first-order analog section by the bilinear transform pre-warped at its corner, so the
- * digital corner lands exactly on the analog one (BRIEF section 2). `where` names the stage for the
- * error when the corner cannot be represented at this sample rate.
+ * digital corner lands exactly on the analog one (BRIEF section 2). A corner near or above Nyquist
+ * (e.g. a tone pot at its end stop) is transformed without pre-warp: the section is then flat in
+ * the audio band either way, and the plain bilinear transform is stable for any corner.
  */
 export function discretiseFirstOrder(
   tf: AnalogTransferFunction,
@@ -17,13 +21,10 @@ export function discretiseFirstOrder(
   sampleRate: number,
   where: string,
 ): DigitalTransferFunction {
-  const nyquistHz = sampleRate / 2;
-  if (!(cornerHz > 0 && cornerHz < nyquistHz)) {
-    throw new UserError(
-      `${where}: corner frequency ${cornerHz.toPrecision(4)} Hz must be above 0 and below half the sample rate (${nyquistHz} Hz); check the resistor and capacitor values`,
-    );
+  if (!(cornerHz > 0)) {
+    throw new UserError(`${where}: corner frequency ${cornerHz} Hz must be above 0; check the resistor and capacitor values`);
   }
-  return bilinearTransform(tf, sampleRate, cornerHz);
+  return bilinearTransform(tf, sampleRate, cornerHz < PREWARP_LIMIT * (sampleRate / 2) ? cornerHz : undefined);
 }
 
 /** Throws a UserError unless `value` is a finite number above zero (at least zero with `allowZero`). */

@@ -4,8 +4,7 @@
  * families, so the SVG needs no network. Non-finite points (and non-positive ones on a log axis)
  * are dropped rather than drawn.
  */
-import * as vega from 'vega';
-import { compile, type TopLevelSpec } from 'vega-lite';
+import type { TopLevelSpec } from 'vega-lite';
 
 export type AxisScale = 'linear' | 'log';
 
@@ -80,8 +79,12 @@ function frameProperties(frame: PlotFrame) {
   };
 }
 
-/** Compiles a vega-lite spec and renders it to an SVG string. */
+/**
+ * Compiles a vega-lite spec and renders it to an SVG string. vega and vega-lite are loaded on first
+ * use, so commands that draw nothing start without them.
+ */
 export async function renderVegaLiteSvg(spec: TopLevelSpec): Promise<string> {
+  const [vega, { compile }] = await Promise.all([import('vega'), import('vega-lite')]);
   const view = new vega.View(vega.parse(compile(spec).spec), { renderer: 'none' });
   try {
     return await view.toSVG();

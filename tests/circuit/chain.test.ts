@@ -62,3 +62,35 @@ describe('chain', () => {
     expect(Buffer.from(first.buffer).equals(Buffer.from(second.buffer))).toBe(true);
   });
 });
+
+describe('end-stop settings', () => {
+  it('renders a tone pot at 0 ohm (corner at infinity) as a flat stage', () => {
+    const sampleRate = 48000;
+    const input = bandLimitedSignal(4800, sampleRate);
+    const design: Design<number> = {
+      name: 'tone-open',
+      supplyVolts: 9,
+      temperatureC: 25,
+      knobs: {},
+      stages: [{ id: 'tone', type: 'tone', r: 0, cap: 22e-9 }],
+    };
+    const output = renderChannel(buildChain(design, { sampleRate, oversample: 1 }), input);
+    // H(s) = 1 / (1 + s R C) = 1 for R = 0 (first-order RC low-pass, any circuits text).
+    expect(output).toEqual(input);
+  });
+
+  it('renders a corner above Nyquist without refusing the design', () => {
+    const sampleRate = 44100;
+    const input = bandLimitedSignal(4410, sampleRate);
+    const design: Design<number> = {
+      name: 'lp-high',
+      supplyVolts: 9,
+      temperatureC: 25,
+      knobs: {},
+      stages: [{ id: 'lp', type: 'lowpass', r: 100, c: 1e-9 }], // fc = 1.59 MHz
+    };
+    const output = renderChannel(buildChain(design, { sampleRate, oversample: 1 }), input);
+    // 1.59 MHz corner: |H| at 15 kHz is 1/sqrt(1 + (15e3/1.59e6)^2), within 0.001 dB of 1.
+    expect(nullDb(output, input, 100, 4400)).toBeLessThan(-40);
+  });
+});

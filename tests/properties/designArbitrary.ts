@@ -22,7 +22,8 @@ export type Json = null | boolean | number | string | Json[] | { [key: string]: 
 export type JsonObject = { [key: string]: Json | undefined };
 
 const MIN_CORNER_HZ = 0.5;
-const MAX_CORNER_HZ = 12e3;
+// Corners up to far above Nyquist: a tone pot at its end stop is a valid setting.
+const MAX_CORNER_HZ = 1e6;
 
 /** Log-uniform number in [min, max], rounded to 3 significant digits (what a designer writes). */
 function logUniform(min: number, max: number): fc.Arbitrary<number> {
@@ -154,7 +155,7 @@ function toneStage(id: string): fc.Arbitrary<JsonObject> {
     fc.record({
       id: fc.constant(id),
       type: fc.constant('tone'),
-      fixed: fc.constant(r),
+      fixed: fc.option(fc.constant(r), { nil: undefined }),
       pot: ohms(1e3, 1e6),
       knob,
       taper,
