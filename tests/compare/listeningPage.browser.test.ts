@@ -151,9 +151,9 @@ describe.skipIf(!haveChromium)('listening page in Chromium', () => {
       await page.click(`[data-answer=${xIsA === answerRight ? 'a' : 'b'}]`);
     }
     const shown = await page.evaluate(() => {
-      const result = Array.from(document.querySelectorAll('[data-role=blind-result]'))[0];
+      const data = Array.from(document.querySelectorAll('[data-role=blind-result]'))[0].dataset;
       const text = (role: string) => Array.from(document.querySelectorAll(`[data-role=${role}]`))[0].textContent;
-      return { ...result.dataset, score: text('score'), revealA: text('reveal-a'), revealB: text('reveal-b'), items: document.querySelectorAll('[data-role=trials-list] li').length };
+      return { correct: data.correct, trials: data.trials, p: data.p, score: text('score'), revealA: text('reveal-a'), revealB: text('reveal-b'), items: document.querySelectorAll('[data-role=trials-list] li').length };
     });
     expect(shown.correct).toBe('3');
     expect(shown.trials).toBe('5');
