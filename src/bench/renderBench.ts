@@ -11,7 +11,10 @@
  * Memory: a separate process renders a long take (default 10 minutes, `--memory-minutes M`, 0 to
  * skip) through the same design as `render` does, and reports its peak RSS against the decoded audio.
  *
- * Options: --seconds S (default 60), --json file, --factors 1,2,4,8,16, --memory-minutes M
+ * Timing: each factor renders the take `--runs` times (default 3) after a JIT warm-up and reports the
+ * fastest run, so a busy machine (other processes on the same cores) disturbs the figures less.
+ *
+ * Options: --seconds S (default 60), --json file, --factors 1,2,4,8,16, --memory-minutes M, --runs N
  */
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
@@ -49,7 +52,7 @@ interface FactorResult {
   clipperSpeedupVsNewton: number;
 }
 
-function parseArgs(argv: string[]): { seconds: number; json?: string; factors: OversampleFactor[]; memoryMinutes: number } {
+function parseArgs(argv: string[]): { seconds: number; json?: string; factors: OversampleFactor[]; memoryMinutes: number; runs: number } {
   const get = (flag: string): string | undefined => {
     const index = argv.indexOf(flag);
     return index >= 0 ? argv[index + 1] : undefined;
@@ -60,11 +63,13 @@ function parseArgs(argv: string[]): { seconds: number; json?: string; factors: O
     .map(Number)
     .filter((f): f is OversampleFactor => (OVERSAMPLE_FACTORS as readonly number[]).includes(f));
   const memoryMinutes = Number(get('--memory-minutes') ?? 10);
+  const runs = Number(get('--runs') ?? 3);
   return {
     seconds: Number.isFinite(seconds) && seconds > 0 ? seconds : 60,
     json: get('--json'),
     factors,
     memoryMinutes: Number.isFinite(memoryMinutes) && memoryMinutes >= 0 ? memoryMinutes : 10,
+    runs: Number.isInteger(runs) && runs >= 1 ? runs : 3,
   };
 }
 
@@ -147,13 +152,16 @@ async function main(): Promise<void> {
   const design = resolveDesign(await readDesignFile(DESIGN_PATH, loadPartsLibrary()));
   const take = synthesizeDemoTake({ sampleRate: BASE_RATE, seconds: args.seconds });
   const decodedMiB = (take.volts.length * 4) / 2 ** 20; // as a decoded float32 WAV would hold it
-  process.stdout.write(`Bench: ${args.seconds} s mono take at ${BASE_RATE} Hz through ${design.name} (decoded audio ${decodedMiB.toFixed(1)} MiB)\n`);
+  process.stdout.write(
+    `Bench: ${args.seconds} s mono take at ${BASE_RATE} Hz through ${design.name} (decoded audio ${decodedMiB.toFixed(1)} MiB), fastest of ${args.runs} runs\n`,
+  );
 
   const results: FactorResult[] = [];
   for (const oversample of args.factors) {
     const chain = buildChain(design, { sampleRate: BASE_RATE, oversample });
     renderChannel(chain, take.volts.subarray(0, BASE_RATE)); // warm up the JIT
-    const seconds = timeIt(() => renderChannel(chain, take.volts));
+    let seconds = Infinity;
+    for (let run = 0; run < args.runs; run++) seconds = Math.min(seconds, timeIt(() => renderChannel(chain, take.volts)));
     results.push({
       oversample,
       realTime: args.seconds / seconds,
