@@ -14,7 +14,11 @@
  * Timing: each factor renders the take `--runs` times (default 3) after a JIT warm-up and reports the
  * fastest run, so a busy machine (other processes on the same cores) disturbs the figures less.
  *
- * Options: --seconds S (default 60), --json file, --factors 1,2,4,8,16, --memory-minutes M, --runs N
+ * Parallel: 8 variants of a 10 s take (`--parallel-seconds S`, 0 to skip) rendered on one thread and
+ * on every core with worker threads, as `compare` and multi-file `render` do.
+ *
+ * Options: --seconds S (default 60), --json file, --factors 1,2,4,8,16, --memory-minutes M, --runs N,
+ *          --parallel-seconds S
  */
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
@@ -34,6 +38,7 @@ import { createClipper, designClipper } from '../circuit/clipper.js';
 import type { DiodeSolverKind } from '../circuit/diodeNode.js';
 import { coherentBin, createToneAnalyzer } from '../analysis/coherentTone.js';
 import { formatRows } from '../report/table.js';
+import { measureParallelRenders, type ParallelResult } from './parallelRenders.js';
 
 const BASE_RATE = 48000;
 const DESIGN_PATH = fileURLToPath(new URL('../../fixtures/designs/night-drive.json', import.meta.url));
@@ -52,7 +57,7 @@ interface FactorResult {
   clipperSpeedupVsNewton: number;
 }
 
-function parseArgs(argv: string[]): { seconds: number; json?: string; factors: OversampleFactor[]; memoryMinutes: number; runs: number } {
+function parseArgs(argv: string[]): { seconds: number; json?: string; factors: OversampleFactor[]; memoryMinutes: number; parallelSeconds: number; runs: number } {
   const get = (flag: string): string | undefined => {
     const index = argv.indexOf(flag);
     return index >= 0 ? argv[index + 1] : undefined;
@@ -63,12 +68,14 @@ function parseArgs(argv: string[]): { seconds: number; json?: string; factors: O
     .map(Number)
     .filter((f): f is OversampleFactor => (OVERSAMPLE_FACTORS as readonly number[]).includes(f));
   const memoryMinutes = Number(get('--memory-minutes') ?? 10);
+  const parallelSeconds = Number(get('--parallel-seconds') ?? 10);
   const runs = Number(get('--runs') ?? 3);
   return {
     seconds: Number.isFinite(seconds) && seconds > 0 ? seconds : 60,
     json: get('--json'),
     factors,
     memoryMinutes: Number.isFinite(memoryMinutes) && memoryMinutes >= 0 ? memoryMinutes : 10,
+    parallelSeconds: Number.isFinite(parallelSeconds) && parallelSeconds >= 0 ? parallelSeconds : 10,
     runs: Number.isInteger(runs) && runs >= 1 ? runs : 3,
   };
 }
@@ -203,8 +210,16 @@ async function main(): Promise<void> {
         `${memory.baselineMiB.toFixed(0)} MiB before reading + ${memory.decodedMiB.toFixed(0)} MiB decoded audio + ${extra.toFixed(0)} MiB more\n`,
     );
   }
+  let parallel: ParallelResult | null = null;
+  if (args.parallelSeconds > 0) {
+    parallel = await measureParallelRenders(DESIGN_PATH, args.parallelSeconds, BASE_RATE);
+    process.stdout.write(
+      `Parallel, ${parallel.jobs} variants of a ${args.parallelSeconds} s take at 8x: ${parallel.oneThreadSeconds.toFixed(2)} s on one thread, ` +
+        `${parallel.allThreadsSeconds.toFixed(2)} s on ${parallel.threads} worker threads (${parallel.speedup.toFixed(2)}x)\n`,
+    );
+  }
   if (args.json) {
-    await writeFileAtomic(args.json, `${JSON.stringify({ seconds: args.seconds, sampleRate: BASE_RATE, design: design.name, results, memory }, null, 2)}\n`);
+    await writeFileAtomic(args.json, `${JSON.stringify({ seconds: args.seconds, sampleRate: BASE_RATE, design: design.name, results, memory, parallel }, null, 2)}\n`);
   }
 }
 
