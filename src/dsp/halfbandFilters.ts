@@ -4,12 +4,74 @@
  * term are a plain delayed copy (h[M] = 1/2), the rest is one symmetric branch of 2K taps folded
  * into K multiplies (Crochiere & Rabiner, Multirate Digital Signal Processing, 1983, ch. 3).
  *
+ * Arms up to MAX_UNROLLED_HALF_ARM taps (every stage from a 48 kHz base up) run a kernel generated for
+ * their K at construction (see `unrolledKernel`): taps and the input window in locals, one new
+ * sample loaded per output. Longer arms run the general loop. Both sum in the same order, so the
+ * kernel choice does not change a bit of the output.
+ *
  * Each filter owns its input buffer: `historyLength` samples of past input followed by room for a
  * block. The caller (or the previous filter in a cascade) writes new samples at `historyLength` and
  * calls `run`; the history then moves to the front. Nothing is allocated per block, and the state
  * carries over exactly, so block boundaries do not change a single output bit.
  */
 import type { HalfbandDesign } from './halfband.js';
+
+/**
+ * Longest arm half (K taps) that gets a generated kernel. Measured (8x chain stages at 48 kHz, same
+ * process, best of 15): K = 5 and 7 run 30-40 % faster than the general loop, K = 20 (the first stage
+ * at 48 kHz) still 5-10 % although its window no longer fits the registers; longer arms are untried.
+ */
+export const MAX_UNROLLED_HALF_ARM = 20;
+
+/**
+ * A generated kernel: `count` outputs, reading the input window that ends at `newest` (the newest
+ * sample of the first output) and moves by `stride` samples per output.
+ */
+type UnrolledKernel = (
+  buffer: Float64Array,
+  taps: Float64Array,
+  newest: number,
+  count: number,
+  output: Float64Array,
+  outputOffset: number,
+) => void;
+
+const kernelCache = new Map<string, UnrolledKernel>();
+
+/**
+ * The kernel for arm half K, generated once per (kind, K) and shared. Window w_j = x[newest - stride j],
+ * j = 0..2K-1, in locals; per output one new w_0 is loaded and the rest shift by one. Output:
+ *   interpolator (stride 1): y[2n] = sum_t c_t (w_t + w_{2K-1-t}),  y[2n+1] = w_{K-1}
+ *   decimator (stride 2):    y[n] = x[newest - M] / 2 + sum_t c_t (w_t + w_{2K-1-t})
+ * i.e. the general loops below with every index a constant, summed in the same order.
+ */
+function unrolledKernel(kind: 'interpolator' | 'decimator', halfArm: number, delay: number): UnrolledKernel {
+  const key = `${kind} ${halfArm} ${delay}`;
+  const cached = kernelCache.get(key);
+  if (cached) return cached;
+  const width = 2 * halfArm;
+  const stride = kind === 'interpolator' ? 1 : 2;
+  const range = (length: number): number[] => Array.from({ length }, (_, i) => i);
+  const taps = range(halfArm).map((t) => `const c${t} = taps[${t}];`);
+  const window = range(width - 1).map((j) => `let w${j + 1} = buffer[newest - ${stride * (j + 1)}];`);
+  const products = range(halfArm).map((t) => `c${t} * (w${t} + w${width - 1 - t})`);
+  const shift = range(width - 1).map((j) => `w${width - 1 - j} = w${width - 2 - j};`);
+  const body =
+    kind === 'interpolator'
+      ? [
+          `const w0 = buffer[newest + n];`,
+          `output[outputOffset + 2 * n] = ${products.join(' + ')};`,
+          `output[outputOffset + 2 * n + 1] = w${halfArm - 1};`,
+        ]
+      : [
+          `const w0 = buffer[newest + 2 * n];`,
+          `output[outputOffset + n] = 0.5 * buffer[newest + 2 * n - ${delay}] + ${products.join(' + ')};`,
+        ];
+  const source = [...taps, ...window, 'for (let n = 0; n < count; n++) {', ...body, ...shift, '}'].join('\n');
+  const kernel = new Function('buffer', 'taps', 'newest', 'count', 'output', 'outputOffset', source) as UnrolledKernel;
+  kernelCache.set(key, kernel);
+  return kernel;
+}
 
 export interface HalfbandFilter {
   /** Input buffer: `historyLength` past samples, then the new block. */
@@ -32,16 +94,23 @@ export class HalfbandInterpolator implements HalfbandFilter {
   readonly historyLength: number;
   private readonly halfArm: number;
   private readonly taps: Float64Array; // 2 c[t], t = 0..K-1 (the other half is the mirror image)
+  private readonly kernel: UnrolledKernel | null;
 
   constructor(design: HalfbandDesign, maxInputLength: number) {
     this.halfArm = design.armTaps.length / 2;
     this.taps = design.armTaps.map((c) => 2 * c).slice(0, this.halfArm);
     this.historyLength = 2 * this.halfArm - 1;
     this.buffer = new Float64Array(this.historyLength + maxInputLength);
+    this.kernel = this.halfArm <= MAX_UNROLLED_HALF_ARM ? unrolledKernel('interpolator', this.halfArm, 0) : null;
   }
 
   run(count: number, output: Float64Array, outputOffset: number): void {
     const { buffer, taps, historyLength, halfArm } = this;
+    if (this.kernel !== null) {
+      this.kernel(buffer, taps, historyLength, count, output, outputOffset);
+      buffer.copyWithin(0, count, count + historyLength);
+      return;
+    }
     const last = 2 * halfArm - 1;
     const centre = halfArm - 1;
     let n = 0;
@@ -120,6 +189,7 @@ export class HalfbandDecimator implements HalfbandFilter {
   private readonly taps: Float64Array; // c[t], t = 0..K-1 (the other half is the mirror image)
   private readonly delay: number;
   private readonly span: number; // distance from the newest to the oldest tap of the branch
+  private readonly kernel: UnrolledKernel | null;
 
   constructor(
     design: HalfbandDesign,
@@ -132,11 +202,17 @@ export class HalfbandDecimator implements HalfbandFilter {
     this.span = 2 * (2 * this.halfArm - 1);
     this.historyLength = this.span + 1;
     this.buffer = new Float64Array(this.historyLength + 2 * maxOutputLength);
+    this.kernel = this.halfArm <= MAX_UNROLLED_HALF_ARM ? unrolledKernel('decimator', this.halfArm, this.delay) : null;
   }
 
   run(count: number, output: Float64Array, outputOffset: number): void {
     const { buffer, taps, historyLength, halfArm, delay, span } = this;
     const start = historyLength - this.extraDelay;
+    if (this.kernel !== null) {
+      this.kernel(buffer, taps, start, count, output, outputOffset);
+      buffer.copyWithin(0, 2 * count, 2 * count + historyLength);
+      return;
+    }
     let n = 0;
     // Four outputs at a time with sliding windows, as in the interpolator (here the windows step by
     // two input samples per tap), summed in the same order as the one-at-a-time tail.

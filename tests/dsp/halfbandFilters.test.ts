@@ -1,0 +1,63 @@
+// Tests for src/dsp/halfbandFilters.ts: the polyphase kernels (generated for short arms, general
+// loop for long ones) against the FIR definition y[n] = sum_k h[k] x[n - k] with the full impulse
+// response (Crochiere & Rabiner, Multirate Digital Signal Processing, 1983, eqs. 2.56 and 2.75:
+// interpolation = zero-stuffing then filtering, decimation = filtering then keeping every second).
+import { describe, expect, it } from 'vitest';
+import { designHalfband, halfbandImpulseResponse } from '../../src/dsp/halfband.js';
+import { HalfbandDecimator, HalfbandInterpolator, MAX_UNROLLED_HALF_ARM } from '../../src/dsp/halfbandFilters.js';
+import { expectClose } from '../helpers/expectClose.js';
+
+function convolve(h: Float64Array, x: Float64Array, n: number): number {
+  let sum = 0;
+  for (let k = 0; k < h.length && k <= n; k++) sum += h[k] * x[n - k];
+  return sum;
+}
+
+function testSignal(length: number): Float64Array {
+  const x = new Float64Array(length);
+  for (let n = 0; n < length; n++) x[n] = Math.sin(n * 0.37) + 0.3 * Math.cos(n * 1.9);
+  return x;
+}
+
+// Transition widths giving arm halves on both sides of MAX_UNROLLED_HALF_ARM.
+const WIDTHS = [0.4, 0.2, 0.1, 0.05];
+
+describe('half-band kernels', () => {
+  it('the widths cover generated and general kernels', () => {
+    const halfArms = WIDTHS.map((w) => designHalfband(w, 101).armTaps.length / 2);
+    expect(Math.min(...halfArms)).toBeLessThanOrEqual(MAX_UNROLLED_HALF_ARM);
+    expect(Math.max(...halfArms)).toBeGreaterThan(MAX_UNROLLED_HALF_ARM);
+  });
+
+  for (const width of WIDTHS) {
+    const design = designHalfband(width, 101);
+    const h = halfbandImpulseResponse(design);
+
+    it(`interpolator (K = ${design.armTaps.length / 2}): zero-stuff and filter, gain 2`, () => {
+      const count = 300;
+      const x = testSignal(count);
+      const filter = new HalfbandInterpolator(design, count);
+      const output = new Float64Array(2 * count);
+      filter.buffer.set(x, filter.historyLength);
+      filter.run(count, output, 0);
+      const stuffed = new Float64Array(2 * count);
+      for (let n = 0; n < count; n++) stuffed[2 * n] = x[n];
+      for (let m = 0; m < output.length; m++) expectClose(output[m], 2 * convolve(h, stuffed, m), { atol: 1e-14 });
+    });
+
+    for (const extraDelay of [0, 1] as const) {
+      it(`decimator (K = ${design.armTaps.length / 2}, padding ${extraDelay}): filter, keep every second`, () => {
+        const count = 150;
+        const x = testSignal(2 * count);
+        const filter = new HalfbandDecimator(design, count, extraDelay);
+        const output = new Float64Array(count);
+        filter.buffer.set(x, filter.historyLength);
+        filter.run(count, output, 0);
+        for (let n = 0; n < count; n++) {
+          const m = 2 * n - extraDelay;
+          expectClose(output[n], m < 0 ? 0 : convolve(h, x, m), { atol: 1e-14 });
+        }
+      });
+    }
+  }
+});
