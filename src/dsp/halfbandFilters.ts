@@ -4,7 +4,7 @@
  * term are a plain delayed copy (h[M] = 1/2), the rest is one symmetric branch of 2K taps folded
  * into K multiplies (Crochiere & Rabiner, Multirate Digital Signal Processing, 1983, ch. 3).
  *
- * Arms up to MAX_UNROLLED_HALF_ARM taps (every stage from a 48 kHz base up) run a kernel generated for
+ * Arms up to MAX_UNROLLED_HALF_ARM taps (every stage after the first) run a kernel generated for
  * their K at construction (see `unrolledKernel`): taps and the input window in locals, one new
  * sample loaded per output. Longer arms run the general loop. Both sum in the same order, so the
  * kernel choice does not change a bit of the output.
@@ -17,11 +17,13 @@
 import type { HalfbandDesign } from './halfband.js';
 
 /**
- * Longest arm half (K taps) that gets a generated kernel. Measured (8x chain stages at 48 kHz, same
- * process, best of 15): K = 5 and 7 run 30-40 % faster than the general loop, K = 20 (the first stage
- * at 48 kHz) still 5-10 % although its window no longer fits the registers; longer arms are untried.
+ * Longest arm half (K taps) that gets a generated kernel. Its code grows as K^2 (2K unrolled steps of
+ * K products): measured in one process, best of 15, the K = 5 and 7 stages of the 8x cascade run in
+ * 0.6-0.7 of the general loop's time. K = 20 (the first stage at 48 kHz) would gain as much, but its
+ * kernel is 42 KB of bytecode and takes about 0.25 s to optimise, and K = 36 (44.1 kHz) exceeds what
+ * V8 optimises at all (it then runs 40 times slower), so long arms keep the general loop.
  */
-export const MAX_UNROLLED_HALF_ARM = 20;
+export const MAX_UNROLLED_HALF_ARM = 8;
 
 /**
  * A generated kernel: `count` outputs, reading the input window that ends at `newest` (the newest
@@ -40,10 +42,14 @@ const kernelCache = new Map<string, UnrolledKernel>();
 
 /**
  * The kernel for arm half K, generated once per (kind, K) and shared. Window w_j = x[newest - stride j],
- * j = 0..2K-1, in locals; per output one new w_0 is loaded and the rest shift by one. Output:
+ * j = 0..2K-1, in 2K locals; per output one new w_0 is loaded. Output:
  *   interpolator (stride 1): y[2n] = sum_t c_t (w_t + w_{2K-1-t}),  y[2n+1] = w_{K-1}
  *   decimator (stride 2):    y[n] = x[newest - M] / 2 + sum_t c_t (w_t + w_{2K-1-t})
- * i.e. the general loops below with every index a constant, summed in the same order.
+ * i.e. the general loops below with every index a constant, summed in the same order. Rather than
+ * shifting the window by one local per output (2K - 1 moves), the loop is unrolled 2K times and
+ * each step loads the new sample into the local that held the oldest: at step r, w_j lives in local
+ * s[(r - j) mod 2K], so after 2K steps every local is back in its role. The last count mod 2K
+ * outputs run the first steps of the same sequence, each behind a test.
  */
 function unrolledKernel(kind: 'interpolator' | 'decimator', halfArm: number, delay: number): UnrolledKernel {
   const key = `${kind} ${halfArm} ${delay}`;
@@ -52,22 +58,32 @@ function unrolledKernel(kind: 'interpolator' | 'decimator', halfArm: number, del
   const width = 2 * halfArm;
   const stride = kind === 'interpolator' ? 1 : 2;
   const range = (length: number): number[] => Array.from({ length }, (_, i) => i);
-  const taps = range(halfArm).map((t) => `const c${t} = taps[${t}];`);
-  const window = range(width - 1).map((j) => `let w${j + 1} = buffer[newest - ${stride * (j + 1)}];`);
-  const products = range(halfArm).map((t) => `c${t} * (w${t} + w${width - 1 - t})`);
-  const shift = range(width - 1).map((j) => `w${width - 1 - j} = w${width - 2 - j};`);
-  const body =
-    kind === 'interpolator'
+  const local = (j: number, r: number): string => `s${(((r - j) % width) + width) % width}`;
+  const step = (r: number): string => {
+    const at = `n + ${r}`;
+    const products = range(halfArm).map((t) => `c${t} * (${local(t, r)} + ${local(width - 1 - t, r)})`);
+    return kind === 'interpolator'
       ? [
-          `const w0 = buffer[newest + n];`,
-          `output[outputOffset + 2 * n] = ${products.join(' + ')};`,
-          `output[outputOffset + 2 * n + 1] = w${halfArm - 1};`,
-        ]
+          `${local(0, r)} = buffer[newest + ${at}];`,
+          `output[outputOffset + 2 * (${at})] = ${products.join(' + ')};`,
+          `output[outputOffset + 2 * (${at}) + 1] = ${local(halfArm - 1, r)};`,
+        ].join('\n')
       : [
-          `const w0 = buffer[newest + 2 * n];`,
-          `output[outputOffset + n] = 0.5 * buffer[newest + 2 * n - ${delay}] + ${products.join(' + ')};`,
-        ];
-  const source = [...taps, ...window, 'for (let n = 0; n < count; n++) {', ...body, ...shift, '}'].join('\n');
+          `${local(0, r)} = buffer[newest + 2 * (${at})];`,
+          `output[outputOffset + ${at}] = 0.5 * buffer[newest + 2 * (${at}) - ${delay}] + ${products.join(' + ')};`,
+        ].join('\n');
+  };
+  const source = [
+    ...range(halfArm).map((t) => `const c${t} = taps[${t}];`),
+    `let s0 = 0;`,
+    ...range(width - 1).map((j) => `let ${local(j + 1, 0)} = buffer[newest - ${stride * (j + 1)}];`),
+    `let n = 0;`,
+    `for (; n + ${width} <= count; n += ${width}) {`,
+    ...range(width).map(step),
+    `}`,
+    `const rest = count - n;`,
+    ...range(width - 1).map((r) => `if (rest > ${r}) {\n${step(r)}\n}`),
+  ].join('\n');
   const kernel = new Function('buffer', 'taps', 'newest', 'count', 'output', 'outputOffset', source) as UnrolledKernel;
   kernelCache.set(key, kernel);
   return kernel;
