@@ -1,12 +1,15 @@
 /**
  * The signal chain: the design's stages in order. Linear stages run at the file rate; each run of
  * consecutive nonlinear stages (gain, clipper) forms a segment that runs at `oversample` x the file
- * rate between an upsampler and a downsampler. Processing is in fixed blocks with buffers allocated
+ * rate between an upsampler and a downsampler. A diode-less gain stage directly followed by a
+ * clipper runs as one fused processor (gainClipperPair.ts); `stages` still lists every stage with
+ * its own meters. Processing is in fixed blocks with buffers allocated
  * once, so a render's memory is the audio plus a small constant.
  */
 import type { CircuitContext, Design, Stage } from '../design/types.js';
 import { createOversampler, type OversampleFactor, type Oversampler } from '../dsp/oversampler.js';
-import { createStageProcessor, isNonlinearStage, type StageProcessor } from './stageModels.js';
+import type { Processor } from './processor.js';
+import { createStageRun, isNonlinearStage, type StageProcessor } from './stageModels.js';
 
 export type { OversampleFactor };
 export const OVERSAMPLE_FACTORS: readonly OversampleFactor[] = [1, 2, 4, 8, 16];
@@ -21,7 +24,8 @@ export interface ChainStageInfo {
 }
 
 interface Segment {
-  stages: StageProcessor[];
+  specs: Stage<number>[];
+  runners: Processor[];
   oversampler: Oversampler | null; // null: runs at the file rate
 }
 
@@ -50,28 +54,33 @@ export function buildChain(design: Design<number>, options: ChainOptions): Chain
   };
   const fastContext: CircuitContext = { ...baseContext, sampleRate: sampleRate * oversample };
 
-  const stages: ChainStageInfo[] = [];
   const segments: Segment[] = [];
   for (const stage of design.stages) {
     const oversampled = isNonlinearStage(stage) && oversample > 1;
-    const processor = createStageProcessor(stage, oversampled ? fastContext : baseContext, design.knobs);
-    stages.push({ id: stage.id, type: stage.type, processor, oversampled });
     const last = segments[segments.length - 1];
     if (last && (last.oversampler !== null) === oversampled) {
-      last.stages.push(processor);
+      last.specs.push(stage);
     } else {
       segments.push({
-        stages: [processor],
+        specs: [stage],
+        runners: [],
         oversampler: oversampled ? createOversampler(oversample, blockSize, sampleRate) : null,
       });
     }
+  }
+  const stages: ChainStageInfo[] = [];
+  for (const segment of segments) {
+    const oversampled = segment.oversampler !== null;
+    const run = createStageRun(segment.specs, oversampled ? fastContext : baseContext, design.knobs);
+    segment.runners = run.runners;
+    segment.specs.forEach((spec, i) => stages.push({ id: spec.id, type: spec.type, processor: run.stages[i], oversampled }));
   }
 
   const latencySamples = segments.reduce(
     (sum, segment) =>
       sum +
       (segment.oversampler ? segment.oversampler.latencyBaseSamples : 0) +
-      segment.stages.reduce((inner, stage) => inner + stage.latencySamples, 0),
+      segment.runners.reduce((inner, runner) => inner + runner.latencySamples, 0),
     0,
   );
 
@@ -82,20 +91,20 @@ export function buildChain(design: Design<number>, options: ChainOptions): Chain
     process(block: Float64Array): void {
       for (const segment of segments) {
         if (segment.oversampler === null) {
-          for (const stage of segment.stages) stage.process(block);
+          for (const runner of segment.runners) runner.process(block);
           continue;
         }
         // The oversampler's own block: downsampling reads it without a copy.
         const fast = segment.oversampler.oversampledBlock(block.length);
         segment.oversampler.upsample(block, fast);
-        for (const stage of segment.stages) stage.process(fast);
+        for (const runner of segment.runners) runner.process(fast);
         segment.oversampler.downsample(fast, block);
       }
     },
     reset(): void {
       for (const segment of segments) {
         segment.oversampler?.reset();
-        for (const stage of segment.stages) stage.reset();
+        for (const runner of segment.runners) runner.reset();
       }
     },
   };

@@ -110,15 +110,17 @@ export class DiodeNode implements ConductionMeter {
   /** Samples that went to Newton (outside the table, or no table), since the last reset. */
   newtonSamples = 0;
 
+  // The constants and the state are also read (and the state written) by the fused gain-clipper
+  // kernel (gainClipperPair.ts).
   private readonly solver: DiodeNodeSolver;
-  private readonly step: number; // table grid step in amperes
-  private readonly pMin: number;
-  private readonly stateGain: number;
-  private readonly intervals: number; // 0 for the 'newton' solver: every p goes to Newton
-  private readonly coefficients: Float64Array;
-  private readonly upVolts: number;
-  private readonly downVolts: number; // negative
-  private state: number; // q_{n-1}
+  readonly step: number; // table grid step in amperes
+  readonly pMin: number;
+  readonly stateGain: number;
+  readonly intervals: number; // 0 for the 'newton' solver: every p goes to Newton
+  readonly coefficients: Float64Array;
+  readonly upVolts: number;
+  readonly downVolts: number; // negative
+  state: number; // q_{n-1}
 
   constructor(design: DiodeNodeDesign, solver: DiodeSolverKind) {
     const table = design.table;
@@ -152,6 +154,12 @@ export class DiodeNode implements ConductionMeter {
     return this.solver.fallbacks;
   }
 
+  /** Node voltage for table coordinate x by Newton (outside the table, or no table); counted. */
+  solveOffTable(x: number): number {
+    this.newtonSamples++;
+    return this.solver.solve(x * this.step + this.pMin);
+  }
+
   /**
    * Drive in, node voltages (volts) out, in place. The drive current in amperes is
    * `driveScale` times the block value (the clipper passes volts and 1/R); block values are first
@@ -178,8 +186,7 @@ export class DiodeNode implements ConductionMeter {
         v = c[o] + x * c[o + 1];
         x = bracket + c[o + 2] + x * c[o + 3];
       } else {
-        v = this.solver.solve(x * this.step + this.pMin);
-        this.newtonSamples++;
+        v = this.solveOffTable(x);
         x = bracket + this.stateGain * v - x;
       }
       if (v > upVolts || v < downVolts) conducting++;

@@ -94,14 +94,16 @@ const MAX_LOOP_ORDER = 3;
  */
 export class OpampStage implements RailMeter {
   railSamples = 0;
-  private readonly b = new Float64Array(MAX_LOOP_ORDER + 1);
-  private readonly a = new Float64Array(MAX_LOOP_ORDER + 1);
-  // Loop state (see `process`): u, s1, s2, the last loop output, then the slew memory.
-  private readonly state = new Float64Array(MAX_LOOP_ORDER + 2);
+  // Coefficients and state are read (and the state written) by the fused gain-clipper kernel
+  // (gainClipperPair.ts) as well as by `process`.
+  readonly b = new Float64Array(MAX_LOOP_ORDER + 1);
+  readonly a = new Float64Array(MAX_LOOP_ORDER + 1);
+  /** Loop state (see `process`): u, s1, s2, the last loop output, then the slew memory. */
+  readonly state = new Float64Array(MAX_LOOP_ORDER + 2);
 
   constructor(
     response: DigitalTransferFunction,
-    private readonly limits: OpampOutputDesign,
+    readonly limits: OpampOutputDesign,
   ) {
     if (response.a.length > MAX_LOOP_ORDER + 1 || response.b.length > MAX_LOOP_ORDER + 1) {
       throw new RangeError(`op-amp loop of order above ${MAX_LOOP_ORDER}`);

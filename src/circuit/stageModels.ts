@@ -13,6 +13,7 @@ import { createRcFilter, designRcFilter, rcFilterSmallSignal } from './rcFilter.
 import { createVolumeStage, designVolumeStage, volumeStageSmallSignal } from './volume.js';
 import { createGainStage, designGainStage, gainStageSmallSignal } from './gain.js';
 import { clipperSmallSignal, createClipper, designClipper } from './clipper.js';
+import { canPairWithClipper, createGainClipperPair } from './gainClipperPair.js';
 
 export interface StageProcessor extends Processor {
   /** Present on stages with diodes: how often they conduct. */
@@ -42,19 +43,53 @@ export function createStageProcessor(
       return createVolumeStage(designVolumeStage(stage, knobs[stage.knob] ?? 0.5, ctx));
     case 'gain': {
       const processor = createGainStage(designGainStage(stage, ctx));
-      return withConduction(processor, stage.feedbackDiode !== null);
+      return withConduction(processor, stage.feedbackDiode !== null ? processor : undefined);
     }
-    case 'clipper':
-      return withConduction(createClipper(designClipper(stage, ctx)), true);
+    case 'clipper': {
+      const processor = createClipper(designClipper(stage, ctx));
+      return withConduction(processor, processor);
+    }
   }
 }
 
-function withConduction(processor: Processor & ConductionMeter, hasDiodes: boolean): StageProcessor {
+/** The processors of consecutive stages at one rate: one per stage, and what runs them. */
+export interface StageRun {
+  /** One per stage, in order (for ids and meters); each also runs alone. */
+  readonly stages: StageProcessor[];
+  /** What processes a block, in order: the stages, with a fused pair for each diode-less gain stage directly followed by a clipper (gainClipperPair.ts). */
+  readonly runners: Processor[];
+}
+
+/** Build the processors of consecutive stages that run at the same rate `ctx.sampleRate`. */
+export function createStageRun(stages: readonly Stage<number>[], ctx: CircuitContext, knobs: Record<string, number>): StageRun {
+  const run: StageRun = { stages: [], runners: [] };
+  for (let i = 0; i < stages.length; i++) {
+    const stage = stages[i];
+    const next = stages[i + 1];
+    if (stage.type === 'gain' && next?.type === 'clipper') {
+      const gain = designGainStage(stage, ctx);
+      if (canPairWithClipper(gain)) {
+        const pair = createGainClipperPair(gain, designClipper(next, ctx));
+        run.stages.push(withConduction(pair.gainStage, undefined));
+        run.stages.push(withConduction(pair.clipperStage, pair.clipperStage));
+        run.runners.push(pair);
+        i++;
+        continue;
+      }
+    }
+    const processor = createStageProcessor(stage, ctx, knobs);
+    run.stages.push(processor);
+    run.runners.push(processor);
+  }
+  return run;
+}
+
+function withConduction(processor: Processor, conduction: ConductionMeter | undefined): StageProcessor {
   return {
     latencySamples: processor.latencySamples,
     process: (block) => processor.process(block),
     reset: () => processor.reset(),
-    conduction: hasDiodes ? processor : undefined,
+    conduction,
   };
 }
 
