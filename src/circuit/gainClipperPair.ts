@@ -79,12 +79,7 @@ export function createGainClipperPair(gain: GainStageDesign, clipper: ClipperDes
     if (n === 0) return;
     // Op-amp constants and state (as in OpampStage.process).
     const { upperVolts, lowerVolts, upperKneeVolts, lowerKneeVolts, maxStepVolts } = opamp.limits;
-    const upperJoint = upperVolts - upperKneeVolts;
-    const lowerJoint = lowerVolts - lowerKneeVolts;
-    const jointCentre = (upperJoint - lowerJoint) / 2;
-    const jointHalfWidth = (upperJoint + lowerJoint) / 2;
-    const upperKneeSquared = upperKneeVolts * upperKneeVolts;
-    const lowerKneeSquared = lowerKneeVolts * lowerKneeVolts;
+    const { upperJoint, lowerJoint, jointCentre, jointHalfWidth, upperKneeSquared, lowerKneeSquared } = opamp.limits;
     const b = opamp.b;
     const a = opamp.a;
     const b0 = b[0];

@@ -36,6 +36,14 @@ export interface OpampOutputDesign {
   readonly upperKneeVolts: number;
   readonly lowerKneeVolts: number;
   readonly maxStepVolts: number; // slew limit per sample (Infinity for the ideal part)
+  // Derived once for the output loops: the knees start at the joints; the output lies outside
+  // [-lowerJoint, upperJoint] iff |y - jointCentre| > jointHalfWidth (one test per sample).
+  readonly upperJoint: number;
+  readonly lowerJoint: number;
+  readonly jointCentre: number;
+  readonly jointHalfWidth: number;
+  readonly upperKneeSquared: number;
+  readonly lowerKneeSquared: number;
 }
 
 /** Validate the part against the supply and precompute the output limits. */
@@ -55,12 +63,22 @@ export function designOpampOutput(opamp: OpampParams, ctx: CircuitContext, where
       `${part}: supply ${ctx.supplyVolts} V leaves no output swing (headroom ${opamp.headroomLowVolts} V low, ${opamp.headroomHighVolts} V high); raise the supply`,
     );
   }
+  const upperKneeVolts = Math.min(RAIL_KNEE_VOLTS, upperVolts / 2);
+  const lowerKneeVolts = Math.min(RAIL_KNEE_VOLTS, lowerVolts / 2);
+  const upperJoint = upperVolts - upperKneeVolts;
+  const lowerJoint = lowerVolts - lowerKneeVolts;
   return {
     upperVolts,
     lowerVolts,
-    upperKneeVolts: Math.min(RAIL_KNEE_VOLTS, upperVolts / 2),
-    lowerKneeVolts: Math.min(RAIL_KNEE_VOLTS, lowerVolts / 2),
+    upperKneeVolts,
+    lowerKneeVolts,
     maxStepVolts: opamp.slewRateVoltsPerSecond / ctx.sampleRate,
+    upperJoint,
+    lowerJoint,
+    jointCentre: (upperJoint - lowerJoint) / 2,
+    jointHalfWidth: (upperJoint + lowerJoint) / 2,
+    upperKneeSquared: upperKneeVolts * upperKneeVolts,
+    lowerKneeSquared: lowerKneeVolts * lowerKneeVolts,
   };
 }
 
@@ -126,13 +144,7 @@ export class OpampStage implements RailMeter {
    */
   process(block: Float64Array): void {
     const { upperVolts, lowerVolts, upperKneeVolts, lowerKneeVolts, maxStepVolts } = this.limits;
-    const upperJoint = upperVolts - upperKneeVolts;
-    const lowerJoint = lowerVolts - lowerKneeVolts;
-    // Outside [-lowerJoint, upperJoint] iff |y - centre| > half width: one test per sample.
-    const jointCentre = (upperJoint - lowerJoint) / 2;
-    const jointHalfWidth = (upperJoint + lowerJoint) / 2;
-    const upperKneeSquared = upperKneeVolts * upperKneeVolts;
-    const lowerKneeSquared = lowerKneeVolts * lowerKneeVolts;
+    const { upperJoint, lowerJoint, jointCentre, jointHalfWidth, upperKneeSquared, lowerKneeSquared } = this.limits;
     const b = this.b;
     const a = this.a;
     const b0 = b[0];
