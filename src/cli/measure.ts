@@ -98,8 +98,8 @@ export function registerMeasureCommand(program: Command): void {
         oversample: parseOversample(flags.oversample),
         aliasSweep: flags.aliasSweep === true,
       });
-      if (flags.json) await writeMeasureJson(flags.json, report, inputs);
-      if (flags.html) await writeMeasureHtml(flags.html, report, inputs);
+      if (flags.json) await writeMeasureJson(flags.json, report);
+      if (flags.html) await writeMeasureHtml(flags.html, report);
       process.stdout.write(summarizeMeasurement(report));
     });
 }

@@ -1,12 +1,11 @@
 /** JSON and HTML output of the `measure` bench. */
-import { assertNotAnInput } from '../audio/atomicWrite.js';
 import type { MeasureReport } from '../analysis/measureDesign.js';
 import { buildHtmlReport, type HtmlSection } from './html.js';
 import { renderLinePlotSvg, renderStemPlotSvg, type PlotRule } from './plots.js';
 import { writeHtmlReport, writeJsonReport, type NamedSvg } from './writeReports.js';
 
-export async function writeMeasureJson(path: string, report: MeasureReport, inputs: string[]): Promise<void> {
-  assertNotAnInput(path, inputs);
+/** The caller has refused output paths that name an input (before measuring). */
+export async function writeMeasureJson(path: string, report: MeasureReport): Promise<void> {
   await writeJsonReport(path, report);
 }
 
@@ -81,8 +80,7 @@ function fmt(value: number | null, digits: number, unit: string): string {
   return value === null ? 'not reached' : `${value.toFixed(digits)} ${unit}`;
 }
 
-export async function writeMeasureHtml(path: string, report: MeasureReport, inputs: string[]): Promise<void> {
-  assertNotAnInput(path, inputs);
+export async function writeMeasureHtml(path: string, report: MeasureReport): Promise<void> {
   const plots = await measurePlots(report);
   const figure = (name: string): { svg: string } => ({ svg: plots.find((p) => p.name === name)?.svg ?? '' });
   const sections: HtmlSection[] = [
