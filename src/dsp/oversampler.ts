@@ -13,6 +13,7 @@
  */
 import { designHalfband } from './halfband.js';
 import { HalfbandDecimator, HalfbandInterpolator } from './halfbandFilters.js';
+import { arenaLength, KernelArena } from '../wasm/halfbandKernels.js';
 
 export type OversampleFactor = 1 | 2 | 4 | 8 | 16;
 
@@ -74,11 +75,24 @@ export function createOversampler(
   const padding = (factor - (unpadded % factor)) % factor;
   const latencyBaseSamples = (unpadded + padding) / factor;
 
-  // interpolators[i] and decimators[i] run between 2^i and 2^(i+1) times the base rate.
-  const interpolators = designs.map((d, i) => new HalfbandInterpolator(d, maxBlockSize * 2 ** i));
-  const decimators = designs.map((d, i) => {
-    const pad = (padding >> (stageCount - 1 - i)) & 1;
-    return new HalfbandDecimator(d, maxBlockSize * 2 ** i, pad === 1 ? 1 : 0);
+  // interpolators[i] and decimators[i] run between 2^i and 2^(i+1) times the base rate; their
+  // buffers, and the base-rate block the last decimator writes, share one kernel arena.
+  const decimatorPads = designs.map((_, i) => ((padding >> (stageCount - 1 - i)) & 1) as 0 | 1);
+  const arena = new KernelArena(
+    arenaLength([
+      maxBlockSize,
+      ...designs.flatMap((d, i) => [
+        ...HalfbandInterpolator.arenaLengths(d, maxBlockSize * 2 ** i),
+        ...HalfbandDecimator.arenaLengths(d, maxBlockSize * 2 ** i),
+      ]),
+    ]),
+  );
+  const baseBlock = arena.allocate(maxBlockSize);
+  const interpolators: HalfbandInterpolator[] = [];
+  const decimators: HalfbandDecimator[] = [];
+  designs.forEach((d, i) => {
+    interpolators.push(new HalfbandInterpolator(d, maxBlockSize * 2 ** i, arena));
+    decimators.push(new HalfbandDecimator(d, maxBlockSize * 2 ** i, decimatorPads[i], arena));
   });
   // The top decimator's input area doubles as the oversampled block (factor 1: a plain buffer).
   const top = decimators[stageCount - 1];
@@ -115,7 +129,11 @@ export function createOversampler(
         const next = interpolators[i + 1];
         interpolators[i].run(count << i, next.buffer, next.historyLength);
       }
-      interpolators[stageCount - 1].run(count << (stageCount - 1), output, 0);
+      // The kernels write into the arena only: other outputs get a copy of the oversampled block.
+      const direct = output.buffer === fastStorage.buffer;
+      const target = direct ? output : fullBlock;
+      interpolators[stageCount - 1].run(count << (stageCount - 1), target, 0);
+      if (!direct) output.set(fullBlock.subarray(0, count * factor));
     },
     downsample(input: Float64Array, output: Float64Array): void {
       const count = output.length;
@@ -131,7 +149,8 @@ export function createOversampler(
         const next = decimators[i - 1];
         decimators[i].run(count << i, next.buffer, next.historyLength);
       }
-      decimators[0].run(count, output, 0);
+      decimators[0].run(count, baseBlock, 0);
+      output.set(count === baseBlock.length ? baseBlock : baseBlock.subarray(0, count));
     },
     reset(): void {
       for (const filter of interpolators) filter.reset();

@@ -1,10 +1,12 @@
-// Tests for src/dsp/halfbandFilters.ts: the polyphase kernels (generated for short arms, general
-// loop for long ones) against the FIR definition y[n] = sum_k h[k] x[n - k] with the full impulse
+// Tests for src/dsp/halfbandFilters.ts: the WebAssembly polyphase kernels (written out for arm
+// halves up to MAX_UNROLLED_HALF_ARM, a loop over the taps beyond) against the FIR definition y[n] = sum_k h[k] x[n - k] with the full impulse
 // response (Crochiere & Rabiner, Multirate Digital Signal Processing, 1983, eqs. 2.56 and 2.75:
 // interpolation = zero-stuffing then filtering, decimation = filtering then keeping every second).
 import { describe, expect, it } from 'vitest';
 import { designHalfband, halfbandImpulseResponse } from '../../src/dsp/halfband.js';
-import { HalfbandDecimator, HalfbandInterpolator, MAX_UNROLLED_HALF_ARM } from '../../src/dsp/halfbandFilters.js';
+import { HalfbandDecimator, HalfbandInterpolator } from '../../src/dsp/halfbandFilters.js';
+import { arenaLength, KernelArena } from '../../src/wasm/halfbandKernels.js';
+import { MAX_UNROLLED_HALF_ARM } from '../../src/wasm/halfbandWat.js';
 import { expectClose } from '../helpers/expectClose.js';
 
 function convolve(h: Float64Array, x: Float64Array, n: number): number {
@@ -19,8 +21,15 @@ function testSignal(length: number): Float64Array {
   return x;
 }
 
-// Transition widths giving arm halves 4, 5, 6, 7 (generated kernels) and 9, 17 (general loop).
-const WIDTHS = [0.45, 0.4, 0.3, 0.25, 0.2, 0.1];
+// Transition widths giving arm halves from 4 (written-out kernels) to beyond MAX_UNROLLED_HALF_ARM
+// (the looped kernel).
+const WIDTHS = [0.45, 0.4, 0.3, 0.25, 0.2, 0.1, 0.03];
+
+/** An arena with room for the filter and an output of `outputLength`. */
+function arenaFor(filterLengths: number[], outputLength: number): { arena: KernelArena; output: Float64Array } {
+  const arena = new KernelArena(arenaLength([...filterLengths, outputLength]));
+  return { arena, output: arena.allocate(outputLength) };
+}
 
 describe('half-band kernels', () => {
   it('the widths cover generated and general kernels', () => {
@@ -34,10 +43,10 @@ describe('half-band kernels', () => {
     const h = halfbandImpulseResponse(design);
 
     it(`interpolator (K = ${design.armTaps.length / 2}): zero-stuff and filter, gain 2`, () => {
-      const count = 297; // not a multiple of any unrolled group (2K), so the tail steps run too
+      const count = 297; // odd: the last output has no SIMD partner
       const x = testSignal(count);
-      const filter = new HalfbandInterpolator(design, count);
-      const output = new Float64Array(2 * count);
+      const { arena, output } = arenaFor(HalfbandInterpolator.arenaLengths(design, count), 2 * count);
+      const filter = new HalfbandInterpolator(design, count, arena);
       filter.buffer.set(x, filter.historyLength);
       filter.run(count, output, 0);
       const stuffed = new Float64Array(2 * count);
@@ -49,8 +58,8 @@ describe('half-band kernels', () => {
       it(`decimator (K = ${design.armTaps.length / 2}, padding ${extraDelay}): filter, keep every second`, () => {
         const count = 151;
         const x = testSignal(2 * count);
-        const filter = new HalfbandDecimator(design, count, extraDelay);
-        const output = new Float64Array(count);
+        const { arena, output } = arenaFor(HalfbandDecimator.arenaLengths(design, count), count);
+        const filter = new HalfbandDecimator(design, count, extraDelay, arena);
         filter.buffer.set(x, filter.historyLength);
         filter.run(count, output, 0);
         for (let n = 0; n < count; n++) {
