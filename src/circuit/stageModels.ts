@@ -14,6 +14,7 @@ import { createVolumeStage, designVolumeStage, volumeStageSmallSignal } from './
 import { createGainStage, designGainStage, gainStageSmallSignal } from './gain.js';
 import { clipperSmallSignal, createClipper, designClipper } from './clipper.js';
 import { canPairWithClipper, createGainClipperPair } from './gainClipperPair.js';
+import { warmUpKernel } from './kernelWarmUp.js';
 
 export interface StageProcessor extends Processor {
   /** Present on stages with diodes: how often they conduct. */
@@ -69,7 +70,9 @@ export function createStageRun(stages: readonly Stage<number>[], ctx: CircuitCon
     if (stage.type === 'gain' && next?.type === 'clipper') {
       const gain = designGainStage(stage, ctx);
       if (canPairWithClipper(gain)) {
-        const pair = createGainClipperPair(gain, designClipper(next, ctx));
+        const clipper = designClipper(next, ctx);
+        warmUpKernel(() => createGainClipperPair(gain, clipper));
+        const pair = createGainClipperPair(gain, clipper);
         run.stages.push(withConduction(pair.gainStage, undefined));
         run.stages.push(withConduction(pair.clipperStage, pair.clipperStage));
         run.runners.push(pair);
@@ -77,6 +80,7 @@ export function createStageRun(stages: readonly Stage<number>[], ctx: CircuitCon
         continue;
       }
     }
+    if (isNonlinearStage(stage)) warmUpKernel(() => createStageProcessor(stage, ctx, knobs));
     const processor = createStageProcessor(stage, ctx, knobs);
     run.stages.push(processor);
     run.runners.push(processor);
