@@ -11,8 +11,9 @@
  * Memory: a separate process renders a long take (default 10 minutes, `--memory-minutes M`, 0 to
  * skip) through the same design as `render` does, and reports its peak RSS against the decoded audio.
  *
- * Timing: each factor renders the take `--runs` times (default 3) after a JIT warm-up and reports the
- * fastest run, so a busy machine (other processes on the same cores) disturbs the figures less.
+ * Timing: after a JIT warm-up, `--runs` rounds (default 7) each render the take once at every factor,
+ * so each factor's runs are spread over the whole timing phase; the fastest run is reported (noise
+ * only ever adds time: other processes, a virtual machine's host) and the median beside it.
  *
  * Parallel: 8 variants of a 10 s take (`--parallel-seconds S`, 0 to skip) rendered on one thread and
  * on every core with worker threads, as `compare` and multi-file `render` do.
@@ -49,7 +50,9 @@ const TARGET_HARMONIC_DELTA_DB = 0.05;
 
 interface FactorResult {
   oversample: OversampleFactor;
+  /** From the fastest run. */
   realTime: number;
+  realTimeMedian: number;
   nsPerOversampledSample: number;
   peakRssMiB: number;
   clipperWaveformErrorDb: number;
@@ -69,15 +72,24 @@ function parseArgs(argv: string[]): { seconds: number; json?: string; factors: O
     .filter((f): f is OversampleFactor => (OVERSAMPLE_FACTORS as readonly number[]).includes(f));
   const memoryMinutes = Number(get('--memory-minutes') ?? 10);
   const parallelSeconds = Number(get('--parallel-seconds') ?? 10);
-  const runs = Number(get('--runs') ?? 3);
+  const runs = Number(get('--runs') ?? DEFAULT_RUNS);
   return {
     seconds: Number.isFinite(seconds) && seconds > 0 ? seconds : 60,
     json: get('--json'),
     factors,
     memoryMinutes: Number.isFinite(memoryMinutes) && memoryMinutes >= 0 ? memoryMinutes : 10,
     parallelSeconds: Number.isFinite(parallelSeconds) && parallelSeconds >= 0 ? parallelSeconds : 10,
-    runs: Number.isInteger(runs) && runs >= 1 ? runs : 3,
+    runs: Number.isInteger(runs) && runs >= 1 ? runs : DEFAULT_RUNS,
   };
+}
+
+const WARM_UP_SECONDS = 1;
+const DEFAULT_RUNS = 7;
+
+function median(values: readonly number[]): number {
+  const sorted = [...values].sort((a, b) => a - b);
+  const middle = sorted.length >> 1;
+  return sorted.length % 2 === 1 ? sorted[middle] : (sorted[middle - 1] + sorted[middle]) / 2;
 }
 
 function timeIt(run: () => void): number {
@@ -160,30 +172,44 @@ async function main(): Promise<void> {
   const take = synthesizeDemoTake({ sampleRate: BASE_RATE, seconds: args.seconds });
   const decodedMiB = (take.volts.length * 4) / 2 ** 20; // as a decoded float32 WAV would hold it
   process.stdout.write(
-    `Bench: ${args.seconds} s mono take at ${BASE_RATE} Hz through ${design.name} (decoded audio ${decodedMiB.toFixed(1)} MiB), fastest of ${args.runs} runs\n`,
+    `Bench: ${args.seconds} s mono take at ${BASE_RATE} Hz through ${design.name} (decoded audio ${decodedMiB.toFixed(1)} MiB), fastest and median of ${args.runs} runs\n`,
   );
 
-  const results: FactorResult[] = [];
-  for (const oversample of args.factors) {
+  // Every factor's chain is built and warmed up first; then each round renders the take once per
+  // factor, so every factor's runs are spread over the whole timing phase (the machine's speed
+  // drifts over seconds) and the fastest run of each factor is kept, with the median beside it.
+  const chains = args.factors.map((oversample) => {
     const chain = buildChain(design, { sampleRate: BASE_RATE, oversample });
-    renderChannel(chain, take.volts.subarray(0, BASE_RATE)); // warm up the JIT
-    let seconds = Infinity;
-    for (let run = 0; run < args.runs; run++) seconds = Math.min(seconds, timeIt(() => renderChannel(chain, take.volts)));
-    results.push({
-      oversample,
-      realTime: args.seconds / seconds,
-      nsPerOversampledSample: (seconds * 1e9) / (take.volts.length * oversample),
-      peakRssMiB: process.resourceUsage().maxRSS / 1024,
-      ...clipperFidelity(design, oversample),
+    renderChannel(chain, take.volts.subarray(0, WARM_UP_SECONDS * BASE_RATE));
+    return chain;
+  });
+  const times = args.factors.map((): number[] => []);
+  const peakRssMiB = args.factors.map(() => 0);
+  for (let run = 0; run < args.runs; run++) {
+    chains.forEach((chain, i) => {
+      times[i].push(timeIt(() => renderChannel(chain, take.volts)));
+      if (run === 0) peakRssMiB[i] = process.resourceUsage().maxRSS / 1024;
     });
   }
+  const results: FactorResult[] = args.factors.map((oversample, i) => {
+    const seconds = Math.min(...times[i]);
+    return {
+      oversample,
+      realTime: args.seconds / seconds,
+      realTimeMedian: args.seconds / median(times[i]),
+      nsPerOversampledSample: (seconds * 1e9) / (take.volts.length * oversample),
+      peakRssMiB: peakRssMiB[i],
+      ...clipperFidelity(design, oversample),
+    };
+  });
 
   process.stdout.write(
     formatRows(
-      ['oversample', 'x real time', 'ns/oversampled sample', 'peak RSS MiB', 'clipper error dB', 'harmonic delta dB', 'clipper speed vs Newton'],
+      ['oversample', 'x real time', 'median x real time', 'ns/oversampled sample', 'peak RSS MiB', 'clipper error dB', 'harmonic delta dB', 'clipper speed vs Newton'],
       results.map((r) => [
         `${r.oversample}x`,
         r.realTime.toFixed(1),
+        r.realTimeMedian.toFixed(1),
         r.nsPerOversampledSample.toFixed(1),
         r.peakRssMiB.toFixed(0),
         r.clipperWaveformErrorDb.toFixed(1),
