@@ -1,14 +1,17 @@
 /**
- * Wall time of a batch of renders (8 variants of one take, as `compare` makes them) on one worker
- * thread and on every core, so the benchmark can show what the worker pool buys.
+ * Wall time of a batch of renders on one core and on every core, as a user meets it: `clipbench
+ * render` of 8 takes in a fresh process, once with `--threads 1` (renders in the main thread) and
+ * once with one worker thread per core. Both include the process start, so neither side has a
+ * JIT already warmed up by the benchmark.
  */
+import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { writeWavFile } from '../audio/wavWrite.js';
 import { synthesizeDemoTake } from '../audio/demoTake.js';
-import { defaultThreadCount, runRenderJobs } from '../render/workerPool.js';
-import type { RenderJob } from '../render/renderJob.js';
+import { defaultThreadCount } from '../render/workerPool.js';
 
 export interface ParallelResult {
   jobs: number;
@@ -18,34 +21,31 @@ export interface ParallelResult {
   speedup: number;
 }
 
-const VARIANTS = 8;
+const TAKES = 8;
+const OVERSAMPLE = 8;
+const cli = fileURLToPath(new URL('../cli/main.js', import.meta.url));
 
 export async function measureParallelRenders(designPath: string, takeSeconds: number, sampleRate: number): Promise<ParallelResult> {
   const folder = mkdtempSync(path.join(tmpdir(), 'clipbench-parallel-'));
   try {
-    const takePath = path.join(folder, 'take.wav');
-    await writeWavFile(takePath, [synthesizeDemoTake({ sampleRate, seconds: takeSeconds }).volts], sampleRate, '24');
-    const jobs: RenderJob[] = Array.from({ length: VARIANTS }, (_, i) => ({
-      designPath,
-      overrides: [`drive=${(i / (VARIANTS - 1)).toFixed(3)}`],
-      inputPath: takePath,
-      outputDir: folder,
-      outputStem: `variant-${i}`,
-      oversample: 8,
-      scale: { fullScaleVolts: 1 },
-      bits: '24',
-    }));
-    const time = async (threads: number): Promise<number> => {
+    const takes: string[] = [];
+    for (let i = 0; i < TAKES; i++) {
+      const takePath = path.join(folder, `take-${i}.wav`);
+      await writeWavFile(takePath, [synthesizeDemoTake({ sampleRate, seconds: takeSeconds, seed: i + 1 }).volts], sampleRate, '24');
+      takes.push(takePath);
+    }
+    const time = (threads: number): number => {
+      const args = [cli, 'render', designPath, ...takes, '-o', path.join(folder, `threads-${threads}`)];
       const start = process.hrtime.bigint();
-      const outcomes = await runRenderJobs(jobs, { threads });
-      if (outcomes.some((outcome) => !outcome.ok)) throw new Error('a benchmark render failed');
-      return Number(process.hrtime.bigint() - start) / 1e9;
+      const child = spawnSync(process.execPath, [...args, '--oversample', String(OVERSAMPLE), '--threads', String(threads)], { encoding: 'utf8' });
+      const seconds = Number(process.hrtime.bigint() - start) / 1e9;
+      if (child.status !== 0) throw new Error(`benchmark render failed: ${child.stderr}`);
+      return seconds;
     };
     const threads = defaultThreadCount();
-    // One thread renders in this process; the pool adds worker start-up, which the timing includes.
-    const oneThreadSeconds = await time(1);
-    const allThreadsSeconds = await time(threads);
-    return { jobs: VARIANTS, threads, oneThreadSeconds, allThreadsSeconds, speedup: oneThreadSeconds / allThreadsSeconds };
+    const oneThreadSeconds = time(1);
+    const allThreadsSeconds = time(threads);
+    return { jobs: TAKES, threads, oneThreadSeconds, allThreadsSeconds, speedup: oneThreadSeconds / allThreadsSeconds };
   } finally {
     rmSync(folder, { recursive: true, force: true });
   }

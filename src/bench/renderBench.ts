@@ -15,8 +15,8 @@
  * so each factor's runs are spread over the whole timing phase; the fastest run is reported (noise
  * only ever adds time: other processes, a virtual machine's host) and the median beside it.
  *
- * Parallel: 8 variants of a 10 s take (`--parallel-seconds S`, 0 to skip) rendered on one thread and
- * on every core with worker threads, as `compare` and multi-file `render` do.
+ * Parallel: `clipbench render` of 8 takes of 30 s (`--parallel-seconds S`, 0 to skip) in a fresh
+ * process with `--threads 1` and with a worker thread per core (the pool `compare` also uses).
  *
  * Options: --seconds S (default 60), --json file, --factors 1,2,4,8,16, --memory-minutes M, --runs N,
  *          --parallel-seconds S
@@ -71,20 +71,21 @@ function parseArgs(argv: string[]): { seconds: number; json?: string; factors: O
     .map(Number)
     .filter((f): f is OversampleFactor => (OVERSAMPLE_FACTORS as readonly number[]).includes(f));
   const memoryMinutes = Number(get('--memory-minutes') ?? 10);
-  const parallelSeconds = Number(get('--parallel-seconds') ?? 10);
+  const parallelSeconds = Number(get('--parallel-seconds') ?? DEFAULT_PARALLEL_SECONDS);
   const runs = Number(get('--runs') ?? DEFAULT_RUNS);
   return {
     seconds: Number.isFinite(seconds) && seconds > 0 ? seconds : 60,
     json: get('--json'),
     factors,
     memoryMinutes: Number.isFinite(memoryMinutes) && memoryMinutes >= 0 ? memoryMinutes : 10,
-    parallelSeconds: Number.isFinite(parallelSeconds) && parallelSeconds >= 0 ? parallelSeconds : 10,
+    parallelSeconds: Number.isFinite(parallelSeconds) && parallelSeconds >= 0 ? parallelSeconds : DEFAULT_PARALLEL_SECONDS,
     runs: Number.isInteger(runs) && runs >= 1 ? runs : DEFAULT_RUNS,
   };
 }
 
 const WARM_UP_SECONDS = 1;
 const DEFAULT_RUNS = 7;
+const DEFAULT_PARALLEL_SECONDS = 30;
 
 function median(values: readonly number[]): number {
   const sorted = [...values].sort((a, b) => a - b);
@@ -240,8 +241,8 @@ async function main(): Promise<void> {
   if (args.parallelSeconds > 0) {
     parallel = await measureParallelRenders(DESIGN_PATH, args.parallelSeconds, BASE_RATE);
     process.stdout.write(
-      `Parallel, ${parallel.jobs} variants of a ${args.parallelSeconds} s take at 8x: ${parallel.oneThreadSeconds.toFixed(2)} s on one thread, ` +
-        `${parallel.allThreadsSeconds.toFixed(2)} s on ${parallel.threads} worker threads (${parallel.speedup.toFixed(2)}x)\n`,
+      `Parallel, clipbench render of ${parallel.jobs} takes of ${args.parallelSeconds} s at 8x, fresh process: ${parallel.oneThreadSeconds.toFixed(2)} s with --threads 1, ` +
+        `${parallel.allThreadsSeconds.toFixed(2)} s with ${parallel.threads} worker threads (${parallel.speedup.toFixed(2)}x)\n`,
     );
   }
   if (args.json) {
