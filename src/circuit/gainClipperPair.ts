@@ -20,7 +20,7 @@ import type { ClipperDesign } from './clipper.js';
 import type { ConductionMeter } from './conduction.js';
 import { DiodeNode } from './diodeNode.js';
 import type { GainStageDesign } from './gain.js';
-import { limitInputVolts } from './inputLimit.js';
+import { limitInputVolts, MAX_INPUT_VOLTS } from './inputLimit.js';
 import { OpampStage, type RailMeter } from './opamp.js';
 import type { Processor } from './processor.js';
 
@@ -31,13 +31,16 @@ export interface GainClipperPair extends Processor, RailMeter, ConductionMeter {
   readonly clipperStage: Processor & ConductionMeter;
 }
 
-/** True when the gain stage can be fused with a following clipper (no feedback diodes). */
+/**
+ * True when the gain stage can be fused with a following clipper: no feedback diodes, and an output
+ * swing inside the clipper's input limit (always, for a supply the design parser accepts).
+ */
 export function canPairWithClipper(gain: GainStageDesign): boolean {
-  return gain.feedback === null;
+  return gain.feedback === null && gain.output.upperVolts <= MAX_INPUT_VOLTS && gain.output.lowerVolts <= MAX_INPUT_VOLTS;
 }
 
 export function createGainClipperPair(gain: GainStageDesign, clipper: ClipperDesign): GainClipperPair {
-  if (!canPairWithClipper(gain)) throw new RangeError(`stage "${gain.stageId}" has feedback diodes: no gain-clipper pair`);
+  if (!canPairWithClipper(gain)) throw new RangeError(`stage "${gain.stageId}" has feedback diodes or a swing beyond the input limit: no gain-clipper pair`);
   const opamp = new OpampStage(gain.response, gain.output);
   const node = new DiodeNode(clipper.node, clipper.solver);
   const seriesSiemens = 1 / clipper.seriesOhms;
@@ -137,7 +140,9 @@ export function createGainClipperPair(gain: GainStageDesign, clipper: ClipperDes
               y = -lowerVolts + lowerKneeSquared / (lowerKneeVolts + (-lowerJoint - y));
             }
           }
-          nextDrive = limitInputVolts(y) * invStep;
+          // y lies within the swing limits, inside +-MAX_INPUT_VOLTS (checked at creation), so the
+          // clipper's input limit would leave it unchanged.
+          nextDrive = y * invStep;
         }
         // Diode node, sample i, from the table.
         if (!(x >= 0 && x < intervals)) break;

@@ -5,7 +5,8 @@ import fc from 'fast-check';
 import { describe, expect, test } from 'vitest';
 import { buildChain } from '../../src/circuit/chain.js';
 import { createClipper, designClipper, type ClipperDesign } from '../../src/circuit/clipper.js';
-import { createGainClipperPair } from '../../src/circuit/gainClipperPair.js';
+import { canPairWithClipper, createGainClipperPair } from '../../src/circuit/gainClipperPair.js';
+import { MAX_INPUT_VOLTS } from '../../src/circuit/inputLimit.js';
 import { createGainStage, designGainStage, type GainStageDesign } from '../../src/circuit/gain.js';
 import type { CircuitContext, ClipperStage, Design, GainStage, OpampParams } from '../../src/design/types.js';
 import { D1N34A, D1N4148, IDEAL_OPAMP, RED_LED, TL072 } from './parts.js';
@@ -197,6 +198,14 @@ describe('fused gain stage and clipper', () => {
     const gain = designGainStage({ id: 'amp', type: 'gain', opamp: TL072, rf: 100e3, rg: 4.7e3, cg: null, cf: null, feedbackDiode: D1N4148, feedbackUp: 1, feedbackDown: 1 }, ctx);
     const clipper = designClipper({ id: 'clip', type: 'clipper', series: 2.2e3, cap: null, diode: D1N4148, downDiode: D1N4148, up: 1, down: 1 }, ctx);
     expect(() => createGainClipperPair(gain, clipper)).toThrow(/feedback diodes/);
+  });
+
+  test('a gain stage whose swing exceeds the input limit is not paired (the pair skips that limit)', () => {
+    // A supply no design file may give (the parser caps it), as a direct design call can.
+    const wild: CircuitContext = { sampleRate: 96000, supplyVolts: 4 * MAX_INPUT_VOLTS, temperatureC: 25 };
+    const spec: GainStage<number> = { id: 'amp', type: 'gain', opamp: TL072, rf: 100e3, rg: 4.7e3, cg: null, cf: null, feedbackDiode: null, feedbackUp: 0, feedbackDown: 0 };
+    expect(canPairWithClipper(designGainStage(spec, { ...wild, supplyVolts: 9 }))).toBe(true);
+    expect(canPairWithClipper(designGainStage(spec, wild))).toBe(false);
   });
 });
 
