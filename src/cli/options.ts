@@ -66,5 +66,5 @@ export function addRenderOptions(command: Command, setHelp: string): Command {
     .option('--input-peak <V>', 'instead: scale each take so its peak is V volts')
     .option('--bits <bits>', 'output WAV: 16, 24 or 32f (float)', '24')
     .option('--parts <file>', 'extra parts library (JSON)')
-    .option('--threads <N>', 'worker threads (default: one per core)');
+    .option('--threads <N>', 'render threads, this one and N - 1 workers (default: one per core)');
 }
