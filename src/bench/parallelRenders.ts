@@ -1,8 +1,8 @@
 /**
  * Wall time of a batch of renders on one core and on every core, as a user meets it: `clipbench
- * render` of 8 takes in a fresh process, once with `--threads 1` (renders in the main thread) and
- * once with one worker thread per core. Both include the process start, so neither side has a
- * JIT already warmed up by the benchmark.
+ * render` of 8 takes in a fresh process, once with `--threads 1` (the main thread alone) and once
+ * with one thread per core (the main thread and worker threads). Both include the process start,
+ * so neither side has a JIT already warmed up by the benchmark.
  */
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';

@@ -16,7 +16,7 @@
  * only ever adds time: other processes, a virtual machine's host) and the median beside it.
  *
  * Parallel: `clipbench render` of 8 takes of 30 s (`--parallel-seconds S`, 0 to skip) in a fresh
- * process with `--threads 1` and with a worker thread per core (the pool `compare` also uses).
+ * process with `--threads 1` and with one thread per core (the pool `compare` also uses).
  *
  * Options: --seconds S (default 60), --json file, --factors 1,2,4,8,16, --memory-minutes M, --runs N,
  *          --parallel-seconds S
@@ -242,7 +242,7 @@ async function main(): Promise<void> {
     parallel = await measureParallelRenders(DESIGN_PATH, args.parallelSeconds, BASE_RATE);
     process.stdout.write(
       `Parallel, clipbench render of ${parallel.jobs} takes of ${args.parallelSeconds} s at 8x, fresh process: ${parallel.oneThreadSeconds.toFixed(2)} s with --threads 1, ` +
-        `${parallel.allThreadsSeconds.toFixed(2)} s with ${parallel.threads} worker threads (${parallel.speedup.toFixed(2)}x)\n`,
+        `${parallel.allThreadsSeconds.toFixed(2)} s with ${parallel.threads} threads (${parallel.speedup.toFixed(2)}x)\n`,
     );
   }
   if (args.json) {

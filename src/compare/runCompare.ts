@@ -1,5 +1,5 @@
 /**
- * `compare`: render every variant of a design for every take (worker threads), loudness-match the
+ * `compare`: render every variant of a design for every take (on every core), loudness-match the
  * renders and the dry take, measure what was written, and write `summary.json` and the listening
  * page `index.html` into the output folder. A failed variant is recorded and the rest go on.
  */
