@@ -23,7 +23,7 @@ import { sanitizeFileStem, type RenderJob } from '../render/renderJob.js';
 import { runRenderJobs, type JobOutcome } from '../render/workerPool.js';
 import type { LoudnessMatchReport, LoudnessMatchTarget } from '../render/loudnessMatch.js';
 import { writeDryTake } from './dryTake.js';
-import { measureWrittenTake } from './takeMetrics.js';
+import { measureWrittenTake, type TakeMetrics } from '../analysis/takeMetrics.js';
 import { buildListeningPage } from './listeningPage.js';
 import type { CompareEntry, CompareSummary, CompareTake, CompareVariantInfo } from './summary.js';
 import type { Variant } from './variants.js';
@@ -127,6 +127,9 @@ export async function runCompare(options: CompareOptions): Promise<CompareResult
         scale: options.scale,
         bits: options.bits,
         ...(options.match ? { match: options.match } : {}),
+        // Measured in the job, on whichever thread renders it; the THD once per variant.
+        measureWritten: true,
+        referenceThd: takeIndex === 0,
       });
     }
   });
@@ -139,7 +142,10 @@ export async function runCompare(options: CompareOptions): Promise<CompareResult
   const step = (): void => options.onProgress?.('measuring', ++stepsDone / steps);
   const thdByVariant = new Map<number, number>();
   for (const c of runnable) {
-    if (c.design) thdByVariant.set(c.number, referenceThdPercent(c.design, options.oversample));
+    const first = outcomes[jobIndex.get(`0:${c.number}`) ?? -1];
+    // A job that failed (an unreadable first take, say) measured nothing: measure here.
+    const thd = first?.ok ? first.result.referenceThdPercent : undefined;
+    if (c.design) thdByVariant.set(c.number, thd ?? referenceThdPercent(c.design, options.oversample));
     step();
   }
 
@@ -155,9 +161,12 @@ export async function runCompare(options: CompareOptions): Promise<CompareResult
   for (const c of checked) if (c.error !== undefined) failures.push(`variant ${c.number} "${c.variant.label}": ${c.error}`);
 
   const spectra = new Map<string, SpectrumPoint[]>();
-  const measured = async (entry: Omit<CompareEntry, 'loudnessLufs' | 'peakDbfs' | 'crestDb' | 'centroidHz'>): Promise<CompareEntry> => {
+  const measured = async (
+    entry: Omit<CompareEntry, 'loudnessLufs' | 'peakDbfs' | 'crestDb' | 'centroidHz'>,
+    fromJob?: TakeMetrics,
+  ): Promise<CompareEntry> => {
     if (entry.file === null) return { ...entry, loudnessLufs: null, peakDbfs: null, crestDb: null, centroidHz: null };
-    const metrics = await measureWrittenTake(path.join(options.outputDir, entry.file));
+    const metrics = fromJob ?? (await measureWrittenTake(path.join(options.outputDir, entry.file)));
     spectra.set(entry.file, metrics.spectrum);
     const { spectrum: _spectrum, ...figures } = metrics;
     const loudnessBeforeLufs = options.match ? entry.loudnessBeforeLufs : figures.loudnessLufs;
@@ -188,7 +197,9 @@ export async function runCompare(options: CompareOptions): Promise<CompareResult
         if (outcome && !outcome.ok) failures.push(`variant ${c.number} "${c.variant.label}" on ${options.inputPaths[takeIndex]}: ${error}`);
         entries.push({ ...common, file: null, ...entryFromMatch(null), loudnessLufs: null, peakDbfs: null, crestDb: null, centroidHz: null, error });
       } else {
-        entries.push(await measured({ ...common, file: path.basename(outcome.result.wavPath), ...entryFromMatch(outcome.result.match) }));
+        entries.push(
+          await measured({ ...common, file: path.basename(outcome.result.wavPath), ...entryFromMatch(outcome.result.match) }, outcome.result.metrics),
+        );
       }
       step();
     }

@@ -14,6 +14,8 @@ import type { RenderProgress } from '../circuit/renderChannel.js';
 import type { CalibrationScale } from '../audio/calibration.js';
 import { renderTakeInPlace, type RenderSummary } from './renderTake.js';
 import { applyLoudnessMatch, type LoudnessMatchReport, type LoudnessMatchTarget } from './loudnessMatch.js';
+import { measureWrittenTake, type TakeMetrics } from '../analysis/takeMetrics.js';
+import { referenceThdPercent } from '../analysis/referenceTone.js';
 
 export interface RenderJob {
   designPath: string;
@@ -31,6 +33,10 @@ export interface RenderJob {
    * sample-peak ceiling. Without it the file keeps the circuit's calibrated level (`render`).
    */
   match?: LoudnessMatchTarget;
+  /** Measure the written file (`compare`: loudness, peak, crest, centroid, spectrum). */
+  measureWritten?: boolean;
+  /** Also measure the design's THD on the reference tone (`compare`, once per variant). */
+  referenceThd?: boolean;
 }
 
 export interface RenderJobResult {
@@ -39,6 +45,10 @@ export interface RenderJobResult {
   summary: RenderSummary;
   /** Present when the job asked for loudness matching. */
   match?: LoudnessMatchReport;
+  /** Present when the job asked for `measureWritten`. */
+  metrics?: TakeMetrics;
+  /** Present when the job asked for `referenceThd`. */
+  referenceThdPercent?: number;
 }
 
 /** Keep letters, digits, dot, dash and underscore; never a path separator or "..". */
@@ -79,5 +89,15 @@ export async function runRenderJob(job: RenderJob, onProgress?: RenderProgress):
     ...(match ? { loudnessMatch: match } : {}),
   };
   await writeFileAtomic(sidecarPath, `${JSON.stringify(sidecar, null, 2)}\n`);
-  return { wavPath, sidecarPath, summary, ...(match ? { match } : {}) };
+  // Measured here, on the job's own thread, so that compare's measurements run on every core too.
+  const metrics = job.measureWritten ? await measureWrittenTake(wavPath) : undefined;
+  const thdPercent = job.referenceThd ? referenceThdPercent(design, job.oversample) : undefined;
+  return {
+    wavPath,
+    sidecarPath,
+    summary,
+    ...(match ? { match } : {}),
+    ...(metrics ? { metrics } : {}),
+    ...(thdPercent !== undefined ? { referenceThdPercent: thdPercent } : {}),
+  };
 }

@@ -8,6 +8,11 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { RenderJob } from '../../src/render/renderJob.js';
+import { measureWrittenTake } from '../../src/analysis/takeMetrics.js';
+import { referenceThdPercent } from '../../src/analysis/referenceTone.js';
+import { loadPartsLibrary } from '../../src/design/parts.js';
+import { readDesignFile } from '../../src/design/parseDesign.js';
+import { resolveDesign } from '../../src/design/resolve.js';
 import type * as Pool from '../../src/render/workerPool.js';
 
 const root = fileURLToPath(new URL('../../', import.meta.url));
@@ -18,7 +23,7 @@ let folder: string;
 let pool: typeof Pool;
 beforeAll(async () => {
   folder = await mkdtemp(join(tmpdir(), 'clipbench-pool-'));
-  await Promise.all(['one', 'three'].map((run) => mkdir(join(folder, run))));
+  await Promise.all(['one', 'three', 'measured'].map((run) => mkdir(join(folder, run))));
   pool = (await import(join(root, 'dist/render/workerPool.js'))) as typeof Pool;
 });
 afterAll(async () => {
@@ -61,5 +66,20 @@ describe('render pool', () => {
       const [fromOne, fromThree] = await Promise.all(['one', 'three'].map((run) => readFile(join(folder, run, `${stem}.wav`))));
       expect(fromThree.equals(fromOne), `${stem}.wav`).toBe(true);
     }
+  }, 60000);
+
+  it("measures in the job what compare would measure on this thread: the written file's figures and the reference THD", async () => {
+    const jobs = batch(join(folder, 'measured'))
+      .filter((job) => !job.inputPath.includes('no-such'))
+      .map((job, i) => ({ ...job, measureWritten: true, referenceThd: i === 0 }));
+    const outcomes = await pool.runRenderJobs(jobs, { threads: 2 });
+    for (const [i, outcome] of outcomes.entries()) {
+      if (!outcome.ok) throw new Error(outcome.message);
+      expect(outcome.result.metrics).toEqual(await measureWrittenTake(outcome.result.wavPath));
+      expect(outcome.result.referenceThdPercent !== undefined).toBe(i === 0);
+    }
+    const first = outcomes[0];
+    const variant = resolveDesign(await readDesignFile(design, loadPartsLibrary(), jobs[0].overrides));
+    expect(first.ok && first.result.referenceThdPercent).toBe(referenceThdPercent(variant, jobs[0].oversample));
   }, 60000);
 });

@@ -8,7 +8,7 @@ import { integratedLoudness } from '../dsp/loudness.js';
 import { floorPowerOfTwo } from '../dsp/fft.js';
 import { welch } from '../dsp/welch.js';
 import { measureLevels } from '../render/levels.js';
-import { logSpacedSpectrum, type SpectrumPoint } from '../analysis/analyzeTake.js';
+import { logSpacedSpectrum, type SpectrumPoint } from './analyzeTake.js';
 import { monoFoldDown } from '../audio/mixdown.js';
 
 export interface TakeMetrics {

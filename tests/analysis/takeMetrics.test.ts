@@ -1,5 +1,5 @@
 import { describe, it } from 'vitest';
-import { spectralCentroidHz } from '../../src/compare/takeMetrics.js';
+import { spectralCentroidHz } from '../../src/analysis/takeMetrics.js';
 import { expectClose } from '../helpers/expectClose.js';
 
 const RATE = 48000;
