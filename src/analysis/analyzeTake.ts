@@ -13,7 +13,7 @@ import { UserError } from '../errors.js';
 import { floorPowerOfTwo } from '../dsp/fft.js';
 import { integratedLoudness } from '../dsp/loudness.js';
 import { truePeakDb } from '../dsp/truePeak.js';
-import { welch } from '../dsp/welch.js';
+import { welch, type WelchResult } from '../dsp/welch.js';
 import { measureHarmonics, type HarmonicReport } from './harmonics.js';
 import { monoFoldDown } from '../audio/mixdown.js';
 import { peakOf, rmsOf } from '../audio/calibration.js';
@@ -74,12 +74,25 @@ function finiteOrNull(value: number): number | null {
   return Number.isFinite(value) ? value : null;
 }
 
-/** Welch spectrum reduced to log-spaced bands (the strongest bin of each band, so tones stay visible). */
-export function logSpacedSpectrum(signal: Float64Array, sampleRate: number, points = SPECTRUM_POINTS): SpectrumPoint[] {
+/**
+ * The long-term average spectrum behind `logSpacedSpectrum` (and compare's spectral centroid):
+ * Welch, 'spectrum' scaling, segments of SPECTRUM_SEGMENT_SECONDS; null when the signal is too short.
+ */
+export function longTermSpectrum(signal: Float64Array, sampleRate: number): WelchResult | null {
   const wanted = floorPowerOfTwo(Math.max(1, SPECTRUM_SEGMENT_SECONDS * sampleRate));
   const segmentLength = Math.min(wanted, floorPowerOfTwo(Math.max(1, signal.length)));
-  if (segmentLength < MIN_SPECTRUM_SEGMENT) return [];
-  const { values, binHz } = welch(signal, sampleRate, { segmentLength, scaling: 'spectrum' });
+  if (segmentLength < MIN_SPECTRUM_SEGMENT) return null;
+  return welch(signal, sampleRate, { segmentLength, scaling: 'spectrum' });
+}
+
+/** Welch spectrum reduced to log-spaced bands (the strongest bin of each band, so tones stay visible). */
+export function logSpacedSpectrum(signal: Float64Array, sampleRate: number, points = SPECTRUM_POINTS): SpectrumPoint[] {
+  const spectrum = longTermSpectrum(signal, sampleRate);
+  return spectrum === null ? [] : logSpacedBands(spectrum, sampleRate, points);
+}
+
+/** `logSpacedSpectrum` from an already computed long-term spectrum. */
+export function logSpacedBands({ values, binHz }: WelchResult, sampleRate: number, points = SPECTRUM_POINTS): SpectrumPoint[] {
   const highHz = Math.min(SPECTRUM_HIGH_HZ, sampleRate / 2);
   const ratio = Math.pow(highHz / SPECTRUM_LOW_HZ, 1 / points);
   const out: SpectrumPoint[] = [];

@@ -5,10 +5,9 @@
  */
 import { readWavFile } from '../audio/wavRead.js';
 import { integratedLoudness } from '../dsp/loudness.js';
-import { floorPowerOfTwo } from '../dsp/fft.js';
-import { welch } from '../dsp/welch.js';
+import type { WelchResult } from '../dsp/welch.js';
 import { measureLevels } from '../render/levels.js';
-import { logSpacedSpectrum, type SpectrumPoint } from './analyzeTake.js';
+import { logSpacedBands, longTermSpectrum, type SpectrumPoint } from './analyzeTake.js';
 import { monoFoldDown } from '../audio/mixdown.js';
 
 export interface TakeMetrics {
@@ -22,20 +21,19 @@ export interface TakeMetrics {
 
 const CENTROID_LOW_HZ = 20;
 const CENTROID_HIGH_HZ = 20_000;
-/** Welch segment for the centroid: 4096 samples at 48 kHz (11.7 Hz bins), scaled with the rate. */
-const CENTROID_SEGMENT_SECONDS = 4096 / 48000;
-const MIN_CENTROID_SEGMENT = 256;
 
 /**
- * Spectral centroid sum(f P(f)) / sum(P(f)) of Welch's averaged periodogram over 20 Hz-20 kHz
- * (the "centre of mass" of the power spectrum, a common brightness measure). Null when the signal
- * is shorter than one segment or has no power in the band.
+ * Spectral centroid sum(f P(f)) / sum(P(f)) of the long-term spectrum (Welch's averaged periodogram,
+ * analyzeTake.ts) over 20 Hz-20 kHz (the "centre of mass" of the power spectrum, a common brightness
+ * measure; the periodogram's scaling cancels). Null when the signal is shorter than one segment or
+ * has no power in the band.
  */
 export function spectralCentroidHz(signal: Float64Array, sampleRate: number): number | null {
-  const wanted = floorPowerOfTwo(Math.max(1, CENTROID_SEGMENT_SECONDS * sampleRate));
-  const segmentLength = Math.min(wanted, floorPowerOfTwo(Math.max(1, signal.length)));
-  if (segmentLength < MIN_CENTROID_SEGMENT) return null;
-  const { values, binHz } = welch(signal, sampleRate, { segmentLength, scaling: 'density' });
+  const spectrum = longTermSpectrum(signal, sampleRate);
+  return spectrum === null ? null : centroidOf(spectrum);
+}
+
+function centroidOf({ values, binHz }: WelchResult): number | null {
   const lowBin = Math.ceil(CENTROID_LOW_HZ / binHz);
   const highBin = Math.min(values.length - 1, Math.floor(CENTROID_HIGH_HZ / binHz));
   let weighted = 0;
@@ -54,12 +52,13 @@ function finiteOrNull(value: number): number | null {
 export async function measureWrittenTake(wavPath: string): Promise<TakeMetrics> {
   const wav = await readWavFile(wavPath);
   const levels = measureLevels(wav.channels, 1); // full scale = 1
-  const mono = monoFoldDown(wav.channels);
+  // One long-term spectrum serves the plotted bands and the centroid.
+  const spectrum = longTermSpectrum(monoFoldDown(wav.channels), wav.sampleRate);
   return {
     loudnessLufs: finiteOrNull(integratedLoudness(wav.channels, wav.sampleRate)),
     peakDbfs: levels.peakVolts > 0 ? 20 * Math.log10(levels.peakVolts) : null,
     crestDb: levels.rmsVolts > 0 ? levels.crestDb : null,
-    centroidHz: spectralCentroidHz(mono, wav.sampleRate),
-    spectrum: logSpacedSpectrum(mono, wav.sampleRate),
+    centroidHz: spectrum === null ? null : centroidOf(spectrum),
+    spectrum: spectrum === null ? [] : logSpacedBands(spectrum, wav.sampleRate),
   };
 }
