@@ -1,7 +1,8 @@
 // Tests for src/dsp/halfbandFilters.ts: the WebAssembly polyphase kernels (written out for arm
-// halves up to MAX_UNROLLED_HALF_ARM, a loop over the taps beyond) against the FIR definition y[n] = sum_k h[k] x[n - k] with the full impulse
-// response (Crochiere & Rabiner, Multirate Digital Signal Processing, 1983, eqs. 2.56 and 2.75:
-// interpolation = zero-stuffing then filtering, decimation = filtering then keeping every second).
+// halves up to MAX_UNROLLED_HALF_ARM, a loop over the taps beyond), odd block lengths included,
+// against the FIR definition y[n] = sum_k h[k] x[n - k] with the full impulse response (Crochiere &
+// Rabiner, Multirate Digital Signal Processing, 1983, eqs. 2.56 and 2.75: interpolation =
+// zero-stuffing then filtering, decimation = filtering then keeping every second).
 import { describe, expect, it } from 'vitest';
 import { designHalfband, halfbandImpulseResponse } from '../../src/dsp/halfband.js';
 import { HalfbandDecimator, HalfbandInterpolator } from '../../src/dsp/halfbandFilters.js';
