@@ -66,7 +66,7 @@ export class HalfbandInterpolator implements HalfbandFilter {
   }
 
   run(count: number, output: Float64Array, outputOffset: number): void {
-    this.kernel(this.bufferAddress, 0, this.tapsAddress, this.halfArm, count, this.arena.address(output, outputOffset));
+    this.kernel(this.bufferAddress, this.tapsAddress, this.halfArm, count, this.arena.address(output, outputOffset));
     this.buffer.copyWithin(0, count, count + this.historyLength);
   }
 

@@ -11,8 +11,8 @@ import { kernelName } from './halfbandWat.js';
 /** The same place from src/wasm (tests) and dist/wasm (the program). */
 export const HALFBAND_KERNELS_PATH = fileURLToPath(new URL('../../dist/wasm/halfbandKernels.wasm', import.meta.url));
 
-/** (buffer, unused, taps, K, count, out): byte addresses except K and count. */
-export type InterpolateKernel = (buffer: number, unused: number, taps: number, halfArm: number, count: number, out: number) => void;
+/** (buffer, taps, K, count, out): byte addresses except K and count. */
+export type InterpolateKernel = (buffer: number, taps: number, halfArm: number, count: number, out: number) => void;
 /** (buffer, start, taps, K, count, out, scratch): `start` is a sample index into the buffer. */
 export type DecimateKernel = (
   buffer: number,

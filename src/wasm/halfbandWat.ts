@@ -31,15 +31,6 @@ const HIGH_LANES = 'i8x16.shuffle 8 9 10 11 12 13 14 15 24 25 26 27 28 29 30 31'
 
 const range = (length: number): number[] => Array.from({ length }, (_, i) => i);
 
-/** Folded tap t with constant offsets from the window base $p (taps from $taps). */
-function unrolledTerm(t: number, halfArm: number): string {
-  const last = 2 * halfArm - 1;
-  return (
-    `(f64x2.mul ${tapValue(t, halfArm)} ` +
-    `(f64x2.add (v128.load offset=${F64 * (last - t)} (local.get $p)) (v128.load offset=${F64 * t} (local.get $p))))`
-  );
-}
-
 /** Arm halves up to this many keep their taps in locals for the whole block. */
 const TAPS_IN_LOCALS = 12;
 
@@ -54,6 +45,15 @@ function tapLocals(halfArm: number | null): { declare: string; load: string } {
     declare: range(halfArm).map((t) => `(local $c${t} v128)`).join(' '),
     load: range(halfArm).map((t) => `(local.set $c${t} (v128.load64_splat offset=${F64 * t} (local.get $taps)))`).join('\n'),
   };
+}
+
+/** Folded tap t with constant offsets from the window base $p (taps from $taps). */
+function unrolledTerm(t: number, halfArm: number): string {
+  const last = 2 * halfArm - 1;
+  return (
+    `(f64x2.mul ${tapValue(t, halfArm)} ` +
+    `(f64x2.add (v128.load offset=${F64 * (last - t)} (local.get $p)) (v128.load offset=${F64 * t} (local.get $p))))`
+  );
 }
 
 /** acc = first + sum of the folded taps in order, for a fixed K. */
@@ -89,7 +89,7 @@ function loopedSum(first: string | null): string {
 
 const LOOP_LOCALS = '(local $tap i32) (local $hi i32) (local $lo i32) (local $t i32)';
 
-/** Interpolator: params (buffer, _, taps, K, count, out), byte addresses; 2 count outputs. */
+/** Interpolator: params (buffer, taps, K, count, out), byte addresses except K and count; 2 count outputs. */
 function interpolator(name: string, sum: string, halfArm: number | null): string {
   // Delayed copy y[2n+1] = x[n + K]: at $p + 8K.
   const delayed =
@@ -97,7 +97,7 @@ function interpolator(name: string, sum: string, halfArm: number | null): string
       ? '(v128.load (i32.add (local.get $p) (i32.shl (local.get $K) (i32.const 3))))'
       : `(v128.load offset=${F64 * halfArm} (local.get $p))`;
   return `
-  (func (export "${name}") (type $kernel) (param $buf i32) (param $unused i32) (param $taps i32) (param $K i32) (param $count i32) (param $out i32)
+  (func (export "${name}") (type $interpolate) (param $buf i32) (param $taps i32) (param $K i32) (param $count i32) (param $out i32)
     (local $p i32) (local $o i32) (local $n i32) (local $acc v128) (local $d v128) ${halfArm === null ? LOOP_LOCALS : ''}
     ${tapLocals(halfArm).declare}
     ${tapLocals(halfArm).load}
@@ -197,7 +197,7 @@ export function kernelName(kind: 'interpolate' | 'decimate', halfArm: number): s
 export function halfbandKernelsWat(): string {
   const unrolled = range(MAX_UNROLLED_HALF_ARM).map((i) => i + 1);
   return `(module
-  (type $kernel (func (param i32 i32 i32 i32 i32 i32)))
+  (type $interpolate (func (param i32 i32 i32 i32 i32)))
   (type $decimate (func (param i32 i32 i32 i32 i32 i32 i32)))
   (import "env" "memory" (memory 1))
   ${unrolled.map((k) => interpolator(kernelName('interpolate', k), unrolledSum(null, k), k)).join('\n')}
