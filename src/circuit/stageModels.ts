@@ -4,17 +4,18 @@
  * to stages through this table.
  */
 import { bilinearTransform, type AnalogTransferFunction, type DigitalTransferFunction } from '../dsp/bilinear.js';
-import type { CircuitContext, Stage } from '../design/types.js';
+import type { CircuitContext, GainStage, Stage } from '../design/types.js';
 import type { Processor } from './processor.js';
 import type { ConductionMeter } from './conduction.js';
 import { createInputStage, designInputStage, inputStageSmallSignal } from './inputStage.js';
 import { createToneStage, designToneStage, toneStageSmallSignal } from './tone.js';
 import { createRcFilter, designRcFilter, rcFilterSmallSignal } from './rcFilter.js';
 import { createVolumeStage, designVolumeStage, volumeStageSmallSignal } from './volume.js';
-import { createGainStage, designGainStage, gainStageSmallSignal } from './gain.js';
-import { clipperSmallSignal, createClipper, designClipper } from './clipper.js';
+import { createGainStage, designGainStage, gainStageSmallSignal, type GainStageDesign } from './gain.js';
+import { clipperSmallSignal, createClipper, designClipper, type ClipperDesign } from './clipper.js';
 import { canPairWithClipper, createGainClipperPair } from './gainClipperPair.js';
 import { warmUpKernel } from './kernelWarmUp.js';
+import type { OpampOutputDesign } from './opamp.js';
 
 export interface StageProcessor extends Processor {
   /** Present on stages with diodes: how often they conduct. */
@@ -42,16 +43,41 @@ export function createStageProcessor(
       return createRcFilter(designRcFilter(stage, ctx));
     case 'volume':
       return createVolumeStage(designVolumeStage(stage, knobs[stage.knob] ?? 0.5, ctx));
-    case 'gain': {
-      const processor = createGainStage(designGainStage(stage, ctx));
-      return withConduction(processor, stage.feedbackDiode !== null ? processor : undefined);
-    }
-    case 'clipper': {
-      const processor = createClipper(designClipper(stage, ctx));
-      return withConduction(processor, processor);
-    }
+    case 'gain':
+      return gainProcessorFactory(stage, designGainStage(stage, ctx))();
+    case 'clipper':
+      return clipperProcessorFactory(designClipper(stage, ctx))();
   }
 }
+
+// Nonlinear stages are designed once (diode tables take a while) and then made by a factory: the
+// kernel warm-up (kernelWarmUp.ts) runs a throwaway processor before the real one.
+function gainProcessorFactory(stage: GainStage<number>, design: GainStageDesign): () => StageProcessor {
+  return () => {
+    const processor = createGainStage(design);
+    return withConduction(processor, stage.feedbackDiode !== null ? processor : undefined);
+  };
+}
+
+function clipperProcessorFactory(design: ClipperDesign): () => StageProcessor {
+  return () => {
+    const processor = createClipper(design);
+    return withConduction(processor, processor);
+  };
+}
+
+/**
+ * A warmed-up processor from `create` (kernelWarmUp.ts): driven to the supply voltage (past any
+ * rail, inside the diode tables), held long enough for the op-amp, if any, to slew into each rail.
+ */
+function warmedUp<P extends Processor>(create: () => P, ctx: CircuitContext, opamp?: OpampOutputDesign): P {
+  const swingVolts = 2 * ctx.supplyVolts;
+  const settleSamples = opamp && Number.isFinite(opamp.maxStepVolts) ? swingVolts / opamp.maxStepVolts + WARM_UP_MARGIN_SAMPLES : WARM_UP_MARGIN_SAMPLES;
+  warmUpKernel(create, { driveVolts: ctx.supplyVolts, settleSamples });
+  return create();
+}
+
+const WARM_UP_MARGIN_SAMPLES = 64;
 
 /** The processors of consecutive stages at one rate: one per stage, and what runs them. */
 export interface StageRun {
@@ -67,21 +93,24 @@ export function createStageRun(stages: readonly Stage<number>[], ctx: CircuitCon
   for (let i = 0; i < stages.length; i++) {
     const stage = stages[i];
     const next = stages[i + 1];
-    if (stage.type === 'gain' && next?.type === 'clipper') {
+    let processor: StageProcessor;
+    if (stage.type === 'gain') {
       const gain = designGainStage(stage, ctx);
-      if (canPairWithClipper(gain)) {
+      if (next?.type === 'clipper' && canPairWithClipper(gain)) {
         const clipper = designClipper(next, ctx);
-        warmUpKernel(() => createGainClipperPair(gain, clipper));
-        const pair = createGainClipperPair(gain, clipper);
+        const pair = warmedUp(() => createGainClipperPair(gain, clipper), ctx, gain.output);
         run.stages.push(withConduction(pair.gainStage, undefined));
         run.stages.push(withConduction(pair.clipperStage, pair.clipperStage));
         run.runners.push(pair);
         i++;
         continue;
       }
+      processor = warmedUp(gainProcessorFactory(stage, gain), ctx, gain.output);
+    } else if (stage.type === 'clipper') {
+      processor = warmedUp(clipperProcessorFactory(designClipper(stage, ctx)), ctx);
+    } else {
+      processor = createStageProcessor(stage, ctx, knobs);
     }
-    if (isNonlinearStage(stage)) warmUpKernel(() => createStageProcessor(stage, ctx, knobs));
-    const processor = createStageProcessor(stage, ctx, knobs);
     run.stages.push(processor);
     run.runners.push(processor);
   }
