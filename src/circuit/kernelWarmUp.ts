@@ -29,7 +29,7 @@ const SILENCE_SAMPLES = 16;
 const GROWTH_SAMPLES = 128;
 const GROWTH_START_VOLTS = 1e-3;
 /** The held drive never lasts longer than this (enough for any op-amp faster than about 0.002 V/us). */
-export const MAX_SETTLE_SAMPLES = 1 << 16;
+const MAX_SETTLE_SAMPLES = 1 << 16;
 
 function warmUpSignal({ driveVolts, settleSamples }: WarmUpSignal): Float64Array {
   const settle = Math.min(MAX_SETTLE_SAMPLES, Math.max(1, Math.ceil(settleSamples)));
