@@ -18,11 +18,11 @@
  * Parallel: `clipbench render` of 8 takes of 30 s (`--parallel-seconds S`, 0 to skip) in a fresh
  * process with `--threads 1` and with one thread per core (the pool `compare` also uses).
  *
- * Options: --seconds S (default 60), --json file, --factors 1,2,4,8,16, --memory-minutes M, --runs N,
- *          --parallel-seconds S
+ * Options: see USAGE below (`npm run bench -- --help`); a bad option is one line on stderr, exit 2.
  */
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, rmSync } from 'node:fs';
+import { parseArgs } from 'node:util';
+import { existsSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -60,32 +60,80 @@ interface FactorResult {
   clipperSpeedupVsNewton: number;
 }
 
-function parseArgs(argv: string[]): { seconds: number; json?: string; factors: OversampleFactor[]; memoryMinutes: number; parallelSeconds: number; runs: number } {
-  const get = (flag: string): string | undefined => {
-    const index = argv.indexOf(flag);
-    return index >= 0 ? argv[index + 1] : undefined;
-  };
-  const seconds = Number(get('--seconds') ?? 60);
-  const factors = (get('--factors') ?? OVERSAMPLE_FACTORS.join(','))
-    .split(',')
-    .map(Number)
-    .filter((f): f is OversampleFactor => (OVERSAMPLE_FACTORS as readonly number[]).includes(f));
-  const memoryMinutes = Number(get('--memory-minutes') ?? 10);
-  const parallelSeconds = Number(get('--parallel-seconds') ?? DEFAULT_PARALLEL_SECONDS);
-  const runs = Number(get('--runs') ?? DEFAULT_RUNS);
-  return {
-    seconds: Number.isFinite(seconds) && seconds > 0 ? seconds : 60,
-    json: get('--json'),
-    factors,
-    memoryMinutes: Number.isFinite(memoryMinutes) && memoryMinutes >= 0 ? memoryMinutes : 10,
-    parallelSeconds: Number.isFinite(parallelSeconds) && parallelSeconds >= 0 ? parallelSeconds : DEFAULT_PARALLEL_SECONDS,
-    runs: Number.isInteger(runs) && runs >= 1 ? runs : DEFAULT_RUNS,
-  };
-}
-
 const WARM_UP_SECONDS = 1;
 const DEFAULT_RUNS = 7;
 const DEFAULT_PARALLEL_SECONDS = 30;
+
+interface BenchArgs {
+  seconds: number;
+  json?: string;
+  factors: OversampleFactor[];
+  memoryMinutes: number;
+  parallelSeconds: number;
+  runs: number;
+}
+
+const USAGE = `usage: npm run bench -- [options]
+  --seconds S            take length in seconds (default 60)
+  --factors 1,2,4,8,16   oversampling factors to time (default all)
+  --runs N               timing rounds; each renders the take once per factor (default ${DEFAULT_RUNS})
+  --memory-minutes M     length of the memory probe's take, 0 to skip (default 10)
+  --parallel-seconds S   take length of the parallel case, 0 to skip (default ${DEFAULT_PARALLEL_SECONDS})
+  --json FILE            also write every figure as JSON
+  --help                 this text`;
+
+/** A bad option: one line, exit status 2. */
+class BenchUsageError extends Error {}
+
+function numberOption(value: string | undefined, flag: string, fallback: number, valid: (n: number) => boolean, expected: string): number {
+  if (value === undefined) return fallback;
+  const n = Number(value);
+  if (value.trim() === '' || !valid(n)) throw new BenchUsageError(`${flag}: "${value}" is not ${expected}`);
+  return n;
+}
+
+function parseBenchArgs(argv: string[]): BenchArgs | null {
+  let parsed;
+  try {
+    parsed = parseArgs({
+      args: argv,
+      options: {
+        seconds: { type: 'string' },
+        factors: { type: 'string' },
+        runs: { type: 'string' },
+        'memory-minutes': { type: 'string' },
+        'parallel-seconds': { type: 'string' },
+        json: { type: 'string' },
+        help: { type: 'boolean' },
+      },
+      strict: true,
+    }).values;
+  } catch (error) {
+    throw new BenchUsageError(error instanceof Error ? error.message : String(error));
+  }
+  if (parsed.help) return null;
+  if (parsed.json !== undefined && !existsSync(path.dirname(path.resolve(parsed.json)))) {
+    throw new BenchUsageError(`--json: the folder of "${parsed.json}" does not exist`);
+  }
+  const factors = (parsed.factors ?? OVERSAMPLE_FACTORS.join(',')).split(',').map((text) => {
+    const factor = Number(text);
+    if (!(OVERSAMPLE_FACTORS as readonly number[]).includes(factor)) {
+      throw new BenchUsageError(`--factors: "${text}" is not an oversampling factor (${OVERSAMPLE_FACTORS.join(', ')})`);
+    }
+    return factor as OversampleFactor;
+  });
+  const positive = (n: number): boolean => Number.isFinite(n) && n > 0;
+  const notNegative = (n: number): boolean => Number.isFinite(n) && n >= 0;
+  return {
+    seconds: numberOption(parsed.seconds, '--seconds', 60, positive, 'a positive number of seconds'),
+    json: parsed.json,
+    factors,
+    memoryMinutes: numberOption(parsed['memory-minutes'], '--memory-minutes', 10, notNegative, 'a number of minutes (0 to skip)'),
+    parallelSeconds: numberOption(parsed['parallel-seconds'], '--parallel-seconds', DEFAULT_PARALLEL_SECONDS, notNegative, 'a number of seconds (0 to skip)'),
+    runs: numberOption(parsed.runs, '--runs', DEFAULT_RUNS, (n) => Number.isInteger(n) && n >= 1, 'a whole number of at least 1'),
+  };
+}
+
 
 function median(values: readonly number[]): number {
   const sorted = [...values].sort((a, b) => a - b);
@@ -168,7 +216,11 @@ async function measureMemory(minutes: number): Promise<MemoryResult> {
 }
 
 async function main(): Promise<void> {
-  const args = parseArgs(process.argv.slice(2));
+  const args = parseBenchArgs(process.argv.slice(2));
+  if (args === null) {
+    process.stdout.write(`${USAGE}\n`);
+    return;
+  }
   const design = resolveDesign(await readDesignFile(DESIGN_PATH, loadPartsLibrary()));
   const take = synthesizeDemoTake({ sampleRate: BASE_RATE, seconds: args.seconds });
   const decodedMiB = (take.volts.length * 4) / 2 ** 20; // as a decoded float32 WAV would hold it
@@ -250,4 +302,10 @@ async function main(): Promise<void> {
   }
 }
 
-await main();
+try {
+  await main();
+} catch (error) {
+  if (!(error instanceof BenchUsageError)) throw error;
+  process.stderr.write(`bench: ${error.message} (npm run bench -- --help for the options)\n`);
+  process.exitCode = 2;
+}

@@ -57,4 +57,23 @@ describe('npm run bench', () => {
       await rm(folder, { recursive: true, force: true });
     }
   }, 120000);
+
+  it('prints its options for --help and refuses a bad option in one line, exit status 2', () => {
+    const help = spawnSync(process.execPath, [bench, '--help'], { encoding: 'utf8' });
+    expect(help.status).toBe(0);
+    for (const flag of ['--seconds', '--factors', '--runs', '--memory-minutes', '--parallel-seconds', '--json']) expect(help.stdout).toContain(flag);
+    for (const [args, named] of [
+      [['--runs', '0'], '--runs'],
+      [['--factors', '8,3'], '--factors'],
+      [['--seconds', 'soon'], '--seconds'],
+      [['--json', '/no/such/folder/bench.json'], '--json'],
+      [['--loud'], '--loud'],
+    ] as const) {
+      const child = spawnSync(process.execPath, [bench, ...args], { encoding: 'utf8' });
+      expect(child.status, args.join(' ')).toBe(2);
+      expect(child.stdout).toBe('');
+      expect(child.stderr.trim().split('\n')).toHaveLength(1);
+      expect(child.stderr).toContain(named);
+    }
+  });
 });
