@@ -48,7 +48,7 @@ const TARGET_REAL_TIME_AT_8X = 100;
 const TARGET_WAVEFORM_ERROR_DB = -60;
 const TARGET_HARMONIC_DELTA_DB = 0.05;
 
-interface FactorResult {
+export interface FactorResult {
   oversample: OversampleFactor;
   /** From the fastest run. */
   realTime: number;
@@ -192,11 +192,21 @@ function clipperFidelity(design: Design<number>, factor: OversampleFactor): Pick
   };
 }
 
-interface MemoryResult {
+export interface MemoryResult {
   minutes: number;
   peakRssMiB: number;
   baselineMiB: number;
   decodedMiB: number;
+}
+
+/** What `--json` writes. */
+export interface BenchReport {
+  seconds: number;
+  sampleRate: number;
+  design: string;
+  results: FactorResult[];
+  memory: MemoryResult | null;
+  parallel: ParallelResult | null;
 }
 
 /** Writes a long take to a temporary folder and renders it in a child process (its own peak RSS). */
@@ -298,7 +308,8 @@ async function main(): Promise<void> {
     );
   }
   if (args.json) {
-    await writeFileAtomic(args.json, `${JSON.stringify({ seconds: args.seconds, sampleRate: BASE_RATE, design: design.name, results, memory, parallel }, null, 2)}\n`);
+    const report: BenchReport = { seconds: args.seconds, sampleRate: BASE_RATE, design: design.name, results, memory, parallel };
+    await writeFileAtomic(args.json, `${JSON.stringify(report, null, 2)}\n`);
   }
 }
 

@@ -8,24 +8,10 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
+// Types only: importing the script itself would run the bench.
+import type { BenchReport } from '../../src/bench/renderBench.js';
 
 const bench = fileURLToPath(new URL('../../dist/bench/renderBench.js', import.meta.url));
-
-interface BenchJson {
-  seconds: number;
-  results: {
-    oversample: number;
-    realTime: number;
-    realTimeMedian: number;
-    nsPerOversampledSample: number;
-    peakRssMiB: number;
-    clipperWaveformErrorDb: number;
-    clipperHarmonicDeltaDb: number;
-    clipperSpeedupVsNewton: number;
-  }[];
-  memory: { minutes: number; peakRssMiB: number; baselineMiB: number; decodedMiB: number } | null;
-  parallel: { jobs: number; threads: number; speedup: number } | null;
-}
 
 describe('npm run bench', () => {
   it('reports speed, memory, parallel runs and clipper fidelity per factor', async () => {
@@ -36,7 +22,7 @@ describe('npm run bench', () => {
       const child = spawnSync(process.execPath, [bench, ...args], { encoding: 'utf8' });
       expect(child.stderr).toBe('');
       expect(child.stdout).toMatch(/Targets at 8x: >= 100x real time: (met|NOT met); clipper error <= -60 dB: met; harmonics within 0.05 dB: met/);
-      const report = JSON.parse(await readFile(json, 'utf8')) as BenchJson;
+      const report = JSON.parse(await readFile(json, 'utf8')) as BenchReport;
       expect(report.results.map((r) => r.oversample)).toEqual([1, 8]);
       for (const r of report.results) {
         expect(r.realTime).toBeGreaterThan(0);
