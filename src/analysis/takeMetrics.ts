@@ -23,17 +23,12 @@ const CENTROID_LOW_HZ = 20;
 const CENTROID_HIGH_HZ = 20_000;
 
 /**
- * Spectral centroid sum(f P(f)) / sum(P(f)) of the long-term spectrum (Welch's averaged periodogram,
- * analyzeTake.ts) over 20 Hz-20 kHz (the "centre of mass" of the power spectrum, a common brightness
- * measure; the periodogram's scaling cancels). Null when the signal is shorter than one segment or
- * has no power in the band.
+ * Spectral centroid sum(f P(f)) / sum(P(f)) of a long-term spectrum (Welch's averaged periodogram,
+ * `longTermSpectrum` in analyzeTake.ts) over 20 Hz-20 kHz: the "centre of mass" of the power
+ * spectrum, a common brightness measure; the periodogram's scaling cancels. Null when there is no
+ * power in the band.
  */
-export function spectralCentroidHz(signal: Float64Array, sampleRate: number): number | null {
-  const spectrum = longTermSpectrum(signal, sampleRate);
-  return spectrum === null ? null : centroidOf(spectrum);
-}
-
-function centroidOf({ values, binHz }: WelchResult): number | null {
+export function spectralCentroidHz({ values, binHz }: WelchResult): number | null {
   const lowBin = Math.ceil(CENTROID_LOW_HZ / binHz);
   const highBin = Math.min(values.length - 1, Math.floor(CENTROID_HIGH_HZ / binHz));
   let weighted = 0;
@@ -58,7 +53,7 @@ export async function measureWrittenTake(wavPath: string): Promise<TakeMetrics> 
     loudnessLufs: finiteOrNull(integratedLoudness(wav.channels, wav.sampleRate)),
     peakDbfs: levels.peakVolts > 0 ? 20 * Math.log10(levels.peakVolts) : null,
     crestDb: levels.rmsVolts > 0 ? levels.crestDb : null,
-    centroidHz: spectrum === null ? null : centroidOf(spectrum),
+    centroidHz: spectrum === null ? null : spectralCentroidHz(spectrum),
     spectrum: spectrum === null ? [] : logSpacedBands(spectrum, wav.sampleRate),
   };
 }

@@ -35,9 +35,10 @@ export async function measureParallelRenders(designPath: string, takeSeconds: nu
       takes.push(takePath);
     }
     const time = (threads: number): number => {
-      const args = [cli, 'render', designPath, ...takes, '-o', path.join(folder, `threads-${threads}`)];
+      const output = path.join(folder, `threads-${threads}`);
+      const args = [cli, 'render', designPath, ...takes, '-o', output, '--oversample', String(OVERSAMPLE), '--threads', String(threads)];
       const start = process.hrtime.bigint();
-      const child = spawnSync(process.execPath, [...args, '--oversample', String(OVERSAMPLE), '--threads', String(threads)], { encoding: 'utf8' });
+      const child = spawnSync(process.execPath, args, { encoding: 'utf8' });
       const seconds = Number(process.hrtime.bigint() - start) / 1e9;
       if (child.status !== 0) throw new Error(`benchmark render failed: ${child.stderr}`);
       return seconds;

@@ -18,6 +18,21 @@ import type { HalfbandDesign } from './halfband.js';
 import { decimatorScratchLength } from '../wasm/halfbandWat.js';
 import type { DecimateKernel, InterpolateKernel, KernelArena } from '../wasm/halfbandKernels.js';
 
+/** K, the number of distinct taps of one half of the branch (armTaps holds 2K). */
+function halfArmOf(design: HalfbandDesign): number {
+  return design.armTaps.length / 2;
+}
+
+/** Past input an interpolator keeps: the branch spans 2K - 1 samples before the newest. */
+function interpolatorHistory(halfArm: number): number {
+  return 2 * halfArm - 1;
+}
+
+/** Past input a decimator keeps: the branch spans 2 (2K - 1) input samples, plus one of padding. */
+function decimatorHistory(halfArm: number): number {
+  return 2 * (2 * halfArm - 1) + 1;
+}
+
 export interface HalfbandFilter {
   /** Input buffer: `historyLength` past samples, then the new block. */
   readonly buffer: Float64Array;
@@ -44,9 +59,9 @@ export class HalfbandInterpolator implements HalfbandFilter {
 
   /** Arena samples one interpolator takes (see `arenaLength`). */
   static arenaLengths(design: HalfbandDesign, maxInputLength: number): number[] {
-    const halfArm = design.armTaps.length / 2;
+    const halfArm = halfArmOf(design);
     // +1: an odd last output's SIMD partner reads one sample past the block.
-    return [halfArm, 2 * halfArm - 1 + maxInputLength + 1];
+    return [halfArm, interpolatorHistory(halfArm) + maxInputLength + 1];
   }
 
   constructor(
@@ -54,11 +69,11 @@ export class HalfbandInterpolator implements HalfbandFilter {
     maxInputLength: number,
     private readonly arena: KernelArena,
   ) {
-    const [tapsLength, bufferLength] = HalfbandInterpolator.arenaLengths(design, maxInputLength);
-    this.halfArm = tapsLength;
-    const taps = arena.allocate(tapsLength); // 2 c[t], t = 0..K-1 (the other half is the mirror image)
-    for (let t = 0; t < tapsLength; t++) taps[t] = 2 * design.armTaps[t];
-    this.historyLength = 2 * this.halfArm - 1;
+    const [, bufferLength] = HalfbandInterpolator.arenaLengths(design, maxInputLength);
+    this.halfArm = halfArmOf(design);
+    const taps = arena.allocate(this.halfArm); // 2 c[t], t = 0..K-1 (the other half is the mirror image)
+    for (let t = 0; t < this.halfArm; t++) taps[t] = 2 * design.armTaps[t];
+    this.historyLength = interpolatorHistory(this.halfArm);
     this.buffer = arena.allocate(bufferLength);
     this.tapsAddress = arena.address(taps, 0);
     this.bufferAddress = arena.address(this.buffer, 0);
@@ -93,9 +108,8 @@ export class HalfbandDecimator implements HalfbandFilter {
 
   /** Arena samples one decimator takes (see `arenaLength`). */
   static arenaLengths(design: HalfbandDesign, maxOutputLength: number): number[] {
-    const halfArm = design.armTaps.length / 2;
-    const historyLength = 2 * (2 * halfArm - 1) + 1;
-    return [halfArm, historyLength + 2 * maxOutputLength, decimatorScratchLength(maxOutputLength, halfArm)];
+    const halfArm = halfArmOf(design);
+    return [halfArm, decimatorHistory(halfArm) + 2 * maxOutputLength, decimatorScratchLength(maxOutputLength, halfArm)];
   }
 
   constructor(
@@ -104,11 +118,11 @@ export class HalfbandDecimator implements HalfbandFilter {
     private readonly extraDelay: 0 | 1,
     private readonly arena: KernelArena,
   ) {
-    const [tapsLength, bufferLength, scratchLength] = HalfbandDecimator.arenaLengths(design, maxOutputLength);
-    this.halfArm = tapsLength;
-    const taps = arena.allocate(tapsLength); // c[t], t = 0..K-1 (the other half is the mirror image)
-    taps.set(design.armTaps.subarray(0, tapsLength));
-    this.historyLength = 2 * (2 * this.halfArm - 1) + 1;
+    const [, bufferLength, scratchLength] = HalfbandDecimator.arenaLengths(design, maxOutputLength);
+    this.halfArm = halfArmOf(design);
+    const taps = arena.allocate(this.halfArm); // c[t], t = 0..K-1 (the other half is the mirror image)
+    taps.set(design.armTaps.subarray(0, this.halfArm));
+    this.historyLength = decimatorHistory(this.halfArm);
     this.buffer = arena.allocate(bufferLength);
     this.tapsAddress = arena.address(taps, 0);
     this.bufferAddress = arena.address(this.buffer, 0);
