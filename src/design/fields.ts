@@ -143,6 +143,9 @@ export const OPAMP_FIELDS: FieldTable = {
   headroomHighVolts: required('voltsOrZero', 'Output swing limit below the positive rail, volts'),
   supplyMinVolts: required('voltsOrZero', 'Lowest rated total supply, volts'),
   supplyMaxVolts: required('voltsOrInf', 'Highest rated total supply, volts ("inf" = any)'),
+  openLoopGain: optional('dimensionless', 'DC open-loop voltage gain, V/V ("inf" for the ideal part; default 100000)'),
+  commonModeLowVolts: optional('voltsOrZero', 'How close to the negative rail the inputs may go, volts (omitted: not stated)'),
+  commonModeHighVolts: optional('voltsOrZero', 'How close to the positive rail the inputs may go, volts (omitted: not stated)'),
   source: optional('text', 'Where the numbers come from'),
 };
 

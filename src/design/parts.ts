@@ -28,7 +28,14 @@ const UNLIMITED_MARKERS: readonly unknown[] = ['inf', 'Infinity', null];
 const IDEALITY_MIN = 0.5;
 const IDEALITY_MAX = 20;
 
-function readUnlimited(value: unknown, path: string, where: Locator, unit: 'hertz' | 'volt' | 'voltPerSecond'): number {
+/** Open-loop gain assumed when a part does not state it: 100 dB (common practice for bipolar and JFET-input op-amps, from memory). */
+const DEFAULT_OPEN_LOOP_GAIN = 1e5;
+
+function optionalVolts(value: unknown, path: string, where: Locator): number | null {
+  return value === undefined ? null : parseValue(value, where.at(path), 'volt', { allowZero: true });
+}
+
+function readUnlimited(value: unknown, path: string, where: Locator, unit: 'hertz' | 'volt' | 'voltPerSecond' | 'ratio'): number {
   if (UNLIMITED_MARKERS.includes(value)) return Infinity;
   return parseValue(value, where.at(path), unit);
 }
@@ -64,6 +71,9 @@ export function parseOpampEntry(raw: unknown, name: string, path: string, where:
     headroomHighVolts: parseValue(field('headroomHighVolts'), where.at(at('headroomHighVolts')), 'volt', { allowZero: true }),
     supplyMinVolts: parseValue(field('supplyMinVolts'), where.at(at('supplyMinVolts')), 'volt', { allowZero: true }),
     supplyMaxVolts: readUnlimited(field('supplyMaxVolts'), at('supplyMaxVolts'), where, 'volt'),
+    openLoopGain: entry.openLoopGain === undefined ? DEFAULT_OPEN_LOOP_GAIN : readUnlimited(entry.openLoopGain, at('openLoopGain'), where, 'ratio'),
+    commonModeLowVolts: optionalVolts(entry.commonModeLowVolts, at('commonModeLowVolts'), where),
+    commonModeHighVolts: optionalVolts(entry.commonModeHighVolts, at('commonModeHighVolts'), where),
     source: entry.source === undefined ? defaultSource : readString(entry.source, at('source'), where, 'a source note'),
   };
   if (opamp.supplyMaxVolts < opamp.supplyMinVolts) {

@@ -36,6 +36,40 @@ export interface OpampParams {
   headroomHighVolts: number; // output swing limit below the positive rail
   supplyMinVolts: number;
   supplyMaxVolts: number;
+  /** DC open-loop voltage gain A0, V/V (datasheet "large-signal voltage gain"); Infinity for the ideal part. */
+  openLoopGain: number;
+  /** Input common-mode range: how close to the negative / positive rail the inputs may go, volts; null = not stated. */
+  commonModeLowVolts: number | null;
+  commonModeHighVolts: number | null;
+  source: string;
+}
+
+/** A datasheet range (min..max) of one part parameter, for tolerance runs and `check`. */
+export interface ParamRange {
+  min: number;
+  max: number;
+}
+
+/** Ebers-Moll transport model of a bipolar transistor (parameters for the NPN sense; PNP mirrors them). */
+export interface BjtParams {
+  name: string;
+  polarity: 'npn' | 'pnp';
+  saturationCurrent: number; // A, transport saturation current Is
+  betaForward: number; // forward common-emitter current gain
+  betaReverse: number; // reverse common-emitter current gain
+  ideality: number; // emission coefficient n (1 unless stated)
+  ranges: Partial<Record<'saturationCurrent' | 'betaForward', ParamRange>>;
+  source: string;
+}
+
+/** Square-law (Shichman-Hodges) junction FET. */
+export interface JfetParams {
+  name: string;
+  polarity: 'n' | 'p';
+  idss: number; // A, drain current at VGS = 0 in saturation
+  pinchOff: number; // V, VGS(off): negative for n-channel, positive for p-channel
+  lambda: number; // 1/V, channel-length modulation
+  ranges: Partial<Record<'idss' | 'pinchOff', ParamRange>>;
   source: string;
 }
 
@@ -95,6 +129,91 @@ export interface VolumeStage {
   knob: string;
   taper: Taper;
   reverse: boolean;
+}
+
+/** Node names with a fixed meaning in every circuit stage. */
+export const GROUND_NODE = 'gnd';
+export const SUPPLY_NODE = 'vcc';
+export const REFERENCE_NODE = 'vref';
+export const RESERVED_NODES: readonly string[] = [GROUND_NODE, SUPPLY_NODE, REFERENCE_NODE];
+
+interface ElementHead {
+  id: string;
+}
+
+export interface ResistorElement extends ElementHead {
+  type: 'resistor';
+  nodes: [string, string];
+  ohms: number;
+}
+
+export interface CapacitorElement extends ElementHead {
+  type: 'capacitor';
+  nodes: [string, string];
+  farads: number;
+}
+
+/** Pot: nodes [lug 1, wiper, lug 3]; resistance lug 1 to wiper = taper(position) x ohms. */
+export interface PotElement extends ElementHead {
+  type: 'pot';
+  nodes: [string, string, string];
+  ohms: number;
+  knob: string;
+  taper: Taper;
+  reverse: boolean;
+}
+
+/** `count` equal diodes in series, nodes [anode, cathode]. */
+export interface DiodeElement extends ElementHead {
+  type: 'diode';
+  nodes: [string, string];
+  diode: DiodeParams;
+  count: number;
+}
+
+/** Op-amp, nodes [non-inverting input, inverting input, output], powered from gnd and vcc. */
+export interface OpampElement extends ElementHead {
+  type: 'opamp';
+  nodes: [string, string, string];
+  opamp: OpampParams;
+}
+
+/** Bipolar transistor, nodes [collector, base, emitter]. */
+export interface BjtElement extends ElementHead {
+  type: 'npn' | 'pnp';
+  nodes: [string, string, string];
+  bjt: BjtParams;
+}
+
+/** Junction FET, nodes [drain, gate, source]. */
+export interface JfetElement extends ElementHead {
+  type: 'njfet' | 'pjfet';
+  nodes: [string, string, string];
+  jfet: JfetParams;
+}
+
+export type CircuitElement =
+  | ResistorElement
+  | CapacitorElement
+  | PotElement
+  | DiodeElement
+  | OpampElement
+  | BjtElement
+  | JfetElement;
+
+export type ElementType = CircuitElement['type'];
+
+/**
+ * Any schematic as data. `input` is driven by the previous stage (or the take) as an ideal voltage
+ * source at 0 V DC; the stage's output is `output`'s voltage minus its DC operating point.
+ * Pots keep their knob: the netlist builder reads the position from the design's knobs.
+ */
+export interface CircuitStage {
+  id: string;
+  type: 'circuit';
+  input: string;
+  output: string;
+  elements: CircuitElement[];
 }
 
 export type Stage<R = Resistance> =

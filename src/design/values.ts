@@ -5,7 +5,7 @@
  */
 import { UserError } from '../errors.js';
 
-export type ValueUnit = 'ohm' | 'farad' | 'volt' | 'ampere' | 'hertz' | 'voltPerSecond';
+export type ValueUnit = 'ohm' | 'farad' | 'volt' | 'ampere' | 'hertz' | 'voltPerSecond' | 'ratio';
 
 export interface ParseValueOptions {
   /** Accept 0 (e.g. an optional series resistor, a unity-gain rf). Negative values are never valid. */
@@ -61,6 +61,7 @@ const UNITS: Readonly<Record<ValueUnit, UnitInfo>> = {
   ampere: { noun: 'current', expected: 'amperes, e.g. 2.52n, 10m or 0.02', symbols: ['A'], rkmUnitLetter: 'A' },
   hertz: { noun: 'frequency', expected: 'hertz, e.g. 1k, 4MHz or 440', symbols: ['Hz'], rkmUnitLetter: null },
   voltPerSecond: { noun: 'slew rate', expected: 'volts per second, e.g. 16e6, 16M or 16MV/s', symbols: ['V/s'], rkmUnitLetter: null },
+  ratio: { noun: 'gain', expected: 'a ratio in V/V, e.g. 200k or 2e5', symbols: ['V/V'], rkmUnitLetter: null },
 };
 
 const PREFIX_CLASS = 'pnuµμmkKMG';

@@ -42,11 +42,14 @@ export const IDEAL_OPAMP: OpampParams = {
   headroomHighVolts: 0,
   supplyMinVolts: 0,
   supplyMaxVolts: Infinity,
+  openLoopGain: Infinity,
+  commonModeLowVolts: null,
+  commonModeHighVolts: null,
   source: 'test',
 };
 
-// TL072: GBW 4 MHz typ, slew 16 V/us typ (BRIEF section 4, datasheet typicals). Headroom 1.5 V each
-// side from the +-13.5 V swing at +-15 V into 10k (same table).
+// TL072: GBW 4 MHz typ, slew 16 V/us typ (TL072 datasheet typicals). Headroom 1.5 V each
+// side from the +-13.5 V swing at +-15 V into 10k (same datasheet).
 export const TL072: OpampParams = {
   name: 'tl072',
   gbwHz: 4e6,
@@ -55,5 +58,8 @@ export const TL072: OpampParams = {
   headroomHighVolts: 1.5,
   supplyMinVolts: 6,
   supplyMaxVolts: 36,
+  openLoopGain: 2e5, // 200 V/mV typ (TL072 datasheet, large-signal voltage gain; from memory)
+  commonModeLowVolts: null,
+  commonModeHighVolts: null,
   source: 'test',
 };
