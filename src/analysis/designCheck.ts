@@ -10,6 +10,7 @@ import { nearestStandardValues, type ESeriesName } from '../design/eSeries.js';
 import { isPot, resistanceRange } from '../design/resolve.js';
 import type { ClipperStage, Design, DiodeParams, GainStage, OpampParams, Pot, Resistance, Stage } from '../design/types.js';
 import { formatValue } from '../design/values.js';
+import { checkCircuitStage, INPUT_IMPEDANCE_HZ } from './circuitCheck.js';
 
 export interface Fact {
   code: string;
@@ -33,6 +34,8 @@ export interface CheckWarning {
 export interface CheckResult {
   facts: Fact[];
   warnings: CheckWarning[];
+  /** Circuit stages at rest: stage id -> node -> volts. */
+  operatingPoint: Record<string, Record<string, number>>;
 }
 
 export interface CheckOptions {
@@ -81,6 +84,7 @@ function knobNote(...resistances: (Resistance | null)[]): string {
 class CheckCollector {
   readonly facts: Fact[] = [];
   readonly warnings: CheckWarning[] = [];
+  readonly operatingPoint: Record<string, Record<string, number>> = Object.create(null) as Record<string, Record<string, number>>;
 
   fact(fact: Fact): void {
     this.facts.push(fact);
@@ -168,8 +172,12 @@ function checkDiodeString(
   return stringVolts;
 }
 
-function firstStageInputOhms(stage: Stage): { minOhms: number; maxOhms: number; note: string } {
+function firstStageInputOhms(stage: Stage, design: Design): { minOhms: number; maxOhms: number; note: string } {
   switch (stage.type) {
+    case 'circuit': {
+      const ohms = checkCircuitStage(stage, design).inputOhms;
+      return { minOhms: ohms, maxOhms: ohms, note: `circuit at ${INPUT_IMPEDANCE_HZ} Hz, at the knob positions` };
+    }
     case 'input': {
       const series = resistanceRange(stage.series);
       const pulldown = resistanceRange(stage.pulldown);
@@ -188,8 +196,8 @@ function firstStageInputOhms(stage: Stage): { minOhms: number; maxOhms: number; 
   }
 }
 
-function checkInputImpedance(out: CheckCollector, stage: Stage): void {
-  const { minOhms, maxOhms, note } = firstStageInputOhms(stage);
+function checkInputImpedance(out: CheckCollector, stage: Stage, design: Design): void {
+  const { minOhms, maxOhms, note } = firstStageInputOhms(stage, design);
   if (!Number.isFinite(minOhms)) {
     out.fact({ code: 'input-impedance', stage: stage.id, label: 'input impedance seen by the pickup', text: `very high (${note})` });
     out.warn('input-no-pulldown', stage.id, 'the op-amp input has no pull-down resistor: add an input stage (a DC path to the bias point and a defined load)');
@@ -302,6 +310,10 @@ function fixedParts(stage: Stage): { field: string; value: number; kind: 'resist
   };
   const capacitor = (field: string, c: number | null) => (c !== null ? [{ field, value: c, kind: 'capacitor' as const }] : []);
   switch (stage.type) {
+    case 'circuit':
+      return stage.elements.flatMap((element): { field: string; value: number; kind: 'resistor' | 'capacitor' }[] =>
+        element.type === 'resistor' ? resistor(`${element.id}.value`, element.ohms) : element.type === 'capacitor' ? capacitor(`${element.id}.value`, element.farads) : [],
+      );
     case 'input':
       return [...resistor('series', stage.series), ...capacitor('coupling', stage.coupling), ...resistor('pulldown', stage.pulldown)];
     case 'gain':
@@ -334,6 +346,13 @@ function checkStandardValues(out: CheckCollector, stage: Stage): void {
 function checkStage(out: CheckCollector, stage: Stage, design: Design, peak: Peaks, diodesFollow: boolean): Peaks {
   checkStandardValues(out, stage);
   switch (stage.type) {
+    case 'circuit': {
+      const result = checkCircuitStage(stage, design);
+      result.facts.forEach((fact) => out.fact(fact));
+      result.warnings.forEach((w) => out.warn(w.code, w.stage, w.message));
+      out.operatingPoint[stage.id] = result.rest.nodes;
+      return { up: peak.up * result.peakGain, down: peak.down * result.peakGain };
+    }
     case 'input': {
       out.corner(stage.id, 'corner-input', 'input high-pass corner (series + pulldown, coupling)', addResistances(stage.series, stage.pulldown), stage.coupling);
       const series = resistanceRange(stage.series).minOhms;
@@ -367,6 +386,7 @@ function addResistances(a: Resistance, b: Resistance): Resistance {
 }
 
 function hasDiodes(stage: Stage): boolean {
+  if (stage.type === 'circuit') return stage.elements.some((element) => element.type === 'diode');
   return (stage.type === 'clipper' && stage.up + stage.down > 0) || (stage.type === 'gain' && stage.feedbackDiode !== null);
 }
 
@@ -376,12 +396,12 @@ export function checkDesign(design: Design<Resistance>, options: CheckOptions): 
   out.fact({ code: 'input-peak', stage: 'design', label: 'worst input assumed', text: `${voltsText(options.inputPeakVolts)} peak at the jack, every knob at its maximum`, unit: 'V', value: options.inputPeakVolts });
   out.fact({ code: 'supply', stage: 'design', label: 'supply', text: `${voltsText(design.supplyVolts)} single supply, bias at ${voltsText(design.supplyVolts / 2)}`, unit: 'V', value: design.supplyVolts });
   const [first] = design.stages;
-  if (first !== undefined) checkInputImpedance(out, first);
+  if (first !== undefined) checkInputImpedance(out, first, design);
   let peak: Peaks = { up: options.inputPeakVolts, down: options.inputPeakVolts };
   design.stages.forEach((stage, index) => {
     const diodesFollow = design.stages.slice(index + 1).some(hasDiodes);
     peak = checkStage(out, stage, design, peak, diodesFollow);
   });
   for (const caution of CAUTIONS) out.fact({ code: 'caution', stage: 'design', label: 'caution', text: caution });
-  return { facts: out.facts, warnings: out.warnings };
+  return { facts: out.facts, warnings: out.warnings, operatingPoint: out.operatingPoint };
 }

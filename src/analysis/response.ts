@@ -1,12 +1,12 @@
 /**
- * Small-signal frequency response of a design: predicted from the stage models (each stage's
- * bilinear-discretised H at the rate it runs at; the oversampler is flat and its latency is
- * compensated) and measured through the full model with stepped coherent sines at a low level.
+ * Small-signal frequency response of a design: predicted from the stage models (a circuit stage's
+ * analog circuit linearised at rest; a named stage's bilinear-discretised H at the rate it runs at;
+ * the oversampler is flat and its latency is compensated) and measured through the full model with
+ * stepped coherent sines at a low level.
  */
 import type { Design } from '../design/types.js';
 import type { Chain } from '../circuit/chain.js';
-import { digitalResponse } from '../dsp/bilinear.js';
-import { isNonlinearStage, stageDigitalTransferFunction } from '../circuit/stageModels.js';
+import { isNonlinearStage, stagePredictedResponse } from '../circuit/stageModels.js';
 import { coherentBin, createToneAnalyzer } from './coherentTone.js';
 import { runSteadyTone } from './toneRun.js';
 import { logSpaced } from './levelSweep.js';
@@ -36,15 +36,15 @@ export function predictResponse(
 ): ResponsePoint[] {
   const base = { sampleRate, supplyVolts: design.supplyVolts, temperatureC: design.temperatureC };
   const fast = { ...base, sampleRate: sampleRate * oversample };
-  const digital = design.stages.map((stage) => {
+  const stageResponses = design.stages.map((stage) => {
     const ctx = isNonlinearStage(stage) && oversample > 1 ? fast : base;
-    return stageDigitalTransferFunction(stage, ctx, design.knobs);
+    return stagePredictedResponse(stage, ctx, design.knobs, frequencies);
   });
-  return frequencies.map((hz) => {
+  return frequencies.map((hz, f) => {
     let re = 1;
     let im = 0;
-    for (const tf of digital) {
-      const [hr, hi] = digitalResponse(tf, hz);
+    for (const response of stageResponses) {
+      const { re: hr, im: hi } = response[f];
       [re, im] = [re * hr - im * hi, re * hi + im * hr];
     }
     return { hz, db: 10 * Math.log10(re * re + im * im), deg: wrapDegrees((Math.atan2(im, re) * 180) / Math.PI) };

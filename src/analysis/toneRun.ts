@@ -6,7 +6,7 @@
 import type { Design } from '../design/types.js';
 import type { Chain } from '../circuit/chain.js';
 import { renderChannel } from '../circuit/renderChannel.js';
-import { stageSmallSignal } from '../circuit/stageModels.js';
+import { stageTimeConstantSum } from '../circuit/stageModels.js';
 
 const FADE_IN_SECONDS = 0.01;
 const MIN_SETTLE_SECONDS = 0.05;
@@ -14,17 +14,11 @@ const MAX_SETTLE_SECONDS = 1.0;
 /** Settling time in multiples of the summed time constants (e^-8 ~ -70 dB residue). */
 const SETTLE_TIME_CONSTANTS = 8;
 
-/**
- * Settling time from the stages' small-signal denominators 1 + a1 s + ...: a1/a0 is the sum of
- * the time constants of the stage's poles (Vieta), an upper bound on the slowest one.
- */
+/** Settling time from the stages' summed small-signal time constants (an upper bound on the slowest one). */
 export function settleSeconds(design: Design<number>, sampleRate: number): number {
   const ctx = { sampleRate, supplyVolts: design.supplyVolts, temperatureC: design.temperatureC };
   let sum = 0;
-  for (const stage of design.stages) {
-    const { a } = stageSmallSignal(stage, ctx, design.knobs);
-    if (a.length > 1 && a[0] !== 0) sum = Math.max(sum, Math.abs(a[1] / a[0]));
-  }
+  for (const stage of design.stages) sum = Math.max(sum, stageTimeConstantSum(stage, ctx, design.knobs));
   return Math.min(MAX_SETTLE_SECONDS, Math.max(MIN_SETTLE_SECONDS, SETTLE_TIME_CONSTANTS * sum));
 }
 

@@ -1,13 +1,14 @@
 /**
  * Static transfer curve vin -> vout of the chain. Each stage is taken at its mid-band steady state:
- * linear stages contribute their passband gain (the largest |H| in 20 Hz-20 kHz); nonlinear stages
- * are rebuilt without their capacitors (series capacitors shorted, shunt capacitors open, which is
- * what they are in mid-band at DC), and driven with a slow stepped ramp so the op-amp's bandwidth
- * and slew play no part.
+ * linear stages contribute their passband gain (the largest |H| in 20 Hz-20 kHz); the named
+ * nonlinear stages are rebuilt without their capacitors (series capacitors shorted, shunt capacitors
+ * open, which is what they are in mid-band at DC), and driven with a slow stepped ramp so the
+ * op-amp's bandwidth and slew play no part. A circuit stage cannot tell its series capacitors from
+ * its shunt ones, so it keeps them all and is traced by a settled 1 kHz tone instead (its curve then
+ * includes whatever the circuit does in one millisecond).
  */
 import type { CircuitContext, Design, Stage } from '../design/types.js';
-import { analogResponse } from '../dsp/bilinear.js';
-import { createStageProcessor, isNonlinearStage, stageSmallSignal } from '../circuit/stageModels.js';
+import { createStageProcessor, isNonlinearStage, stageAnalogResponse, stageTimeConstantSum } from '../circuit/stageModels.js';
 import { logSpaced } from './levelSweep.js';
 
 export interface TransferPoint {
@@ -20,13 +21,32 @@ const HOLD_SAMPLES = 64;
 const RAMP_RATE = 768000;
 
 function passbandGain(stage: Stage<number>, ctx: CircuitContext, knobs: Record<string, number>): number {
-  const tf = stageSmallSignal(stage, ctx, knobs);
-  let best = 0;
-  for (const hz of logSpaced(20, 20000, 61)) {
-    const [re, im] = analogResponse(tf, hz);
-    best = Math.max(best, Math.hypot(re, im));
-  }
-  return best;
+  return Math.max(...stageAnalogResponse(stage, ctx, knobs, logSpaced(20, 20000, 61)).map(({ re, im }) => Math.hypot(re, im)));
+}
+
+/** A circuit stage keeps its capacitors: its curve is traced by the rising half of a settled tone. */
+const TRACE_TONE_HZ = 1000;
+const TRACE_MAX_SETTLE_SECONDS = 1;
+
+/**
+ * `signal` (a stepped ramp of `vin` levels, HOLD_SAMPLES each) through a circuit stage: the output
+ * where a settled 1 kHz tone of the ramp's peak passes each level on its rising half.
+ */
+function traceCircuitStage(stage: Stage<number>, ctx: CircuitContext, knobs: Record<string, number>, signal: Float64Array, points: number): void {
+  const levels = Array.from({ length: points }, (_, i) => signal[(i + 1) * HOLD_SAMPLES - 1]);
+  const peak = Math.max(...levels.map(Math.abs));
+  const period = Math.round(ctx.sampleRate / TRACE_TONE_HZ);
+  const settlePeriods = Math.ceil(Math.min(TRACE_MAX_SETTLE_SECONDS, 8 * stageTimeConstantSum(stage, ctx, knobs)) * TRACE_TONE_HZ) + 2;
+  const tone = new Float64Array((settlePeriods + 1) * period);
+  for (let n = 0; n < tone.length; n++) tone[n] = peak * Math.sin((2 * Math.PI * n) / period);
+  createStageProcessor(stage, ctx, knobs).process(tone);
+  const lastPeriod = settlePeriods * period;
+  levels.forEach((level, i) => {
+    // The rising half runs from phase -pi/2 to pi/2: the sample at phase asin(level / peak).
+    const phase = peak > 0 ? Math.asin(Math.max(-1, Math.min(1, level / peak))) : 0;
+    const index = lastPeriod + ((Math.round((phase / (2 * Math.PI)) * period) + period) % period);
+    signal.fill(tone[index], i * HOLD_SAMPLES, (i + 1) * HOLD_SAMPLES);
+  });
 }
 
 function withoutCapacitors(stage: Stage<number>): Stage<number> {
@@ -41,7 +61,9 @@ export function staticTransferCurve(design: Design<number>, maxVolts: number, po
   const signal = new Float64Array(points * HOLD_SAMPLES);
   vin.forEach((v, i) => signal.fill(v, i * HOLD_SAMPLES, (i + 1) * HOLD_SAMPLES));
   for (const stage of design.stages) {
-    if (isNonlinearStage(stage)) {
+    if (stage.type === 'circuit') {
+      traceCircuitStage(stage, ctx, design.knobs, signal, points);
+    } else if (isNonlinearStage(stage)) {
       createStageProcessor(withoutCapacitors(stage), ctx, design.knobs).process(signal);
     } else {
       const gain = passbandGain(stage, ctx, design.knobs);

@@ -4,7 +4,10 @@
  * to stages through this table.
  */
 import { bilinearTransform, type AnalogTransferFunction, type DigitalTransferFunction } from '../dsp/bilinear.js';
-import type { CircuitContext, GainStage, Stage } from '../design/types.js';
+import { analogResponse, digitalResponse } from '../dsp/bilinear.js';
+import type { CircuitContext, CircuitStage, GainStage, Stage } from '../design/types.js';
+import { openCircuitTimeConstantSum, type ComplexGain } from '../solver/smallSignal.js';
+import { analyseCircuitStage, circuitStageResponse, createCircuitStage, designCircuitStage } from './circuitStage.js';
 import type { Processor } from './processor.js';
 import type { ConductionMeter } from './conduction.js';
 import { createInputStage, designInputStage, inputStageSmallSignal } from './inputStage.js';
@@ -22,9 +25,12 @@ export interface StageProcessor extends Processor {
   readonly conduction?: ConductionMeter;
 }
 
-/** True for the stages that must run at the oversampled rate. */
+/** The named stage types, whose small-signal model is a rational H(s). */
+export type NamedStage = Exclude<Stage<number>, CircuitStage>;
+
+/** True for the stages that must run at the oversampled rate (circuit stages always do). */
 export function isNonlinearStage(stage: Stage<number>): boolean {
-  return stage.type === 'gain' || stage.type === 'clipper';
+  return stage.type === 'gain' || stage.type === 'clipper' || stage.type === 'circuit';
 }
 
 /** Build the processor for one resolved stage; `knobs` gives positions for knob-driven parts. */
@@ -34,6 +40,8 @@ export function createStageProcessor(
   knobs: Record<string, number>,
 ): StageProcessor {
   switch (stage.type) {
+    case 'circuit':
+      return createCircuitStage(designCircuitStage(stage, ctx, knobs));
     case 'input':
       return createInputStage(designInputStage(stage, ctx));
     case 'tone':
@@ -126,9 +134,9 @@ function withConduction(processor: Processor, conduction: ConductionMeter | unde
   };
 }
 
-/** The analog small-signal H(s) of one resolved stage. */
+/** The analog small-signal H(s) of one resolved named stage. */
 export function stageSmallSignal(
-  stage: Stage<number>,
+  stage: NamedStage,
   ctx: CircuitContext,
   knobs: Record<string, number>,
 ): AnalogTransferFunction {
@@ -155,7 +163,7 @@ export function stageSmallSignal(
  * small-signal H(s), which is what their discretisation reduces to at vanishing level.
  */
 export function stageDigitalTransferFunction(
-  stage: Stage<number>,
+  stage: NamedStage,
   ctx: CircuitContext,
   knobs: Record<string, number>,
 ): DigitalTransferFunction {
@@ -173,4 +181,51 @@ export function stageDigitalTransferFunction(
     case 'clipper':
       return bilinearTransform(stageSmallSignal(stage, ctx, knobs), ctx.sampleRate);
   }
+}
+
+/**
+ * The response `measure` predicts for one stage at each frequency: for a circuit stage the analog
+ * circuit linearised at rest; for a named stage its discretised H(z) at the rate it runs at
+ * (`ctx.sampleRate`).
+ */
+export function stagePredictedResponse(
+  stage: Stage<number>,
+  ctx: CircuitContext,
+  knobs: Record<string, number>,
+  frequenciesHz: readonly number[],
+): ComplexGain[] {
+  if (stage.type === 'circuit') return circuitStageResponse(stage, ctx, knobs, frequenciesHz);
+  const tf = stageDigitalTransferFunction(stage, ctx, knobs);
+  return frequenciesHz.map((hz) => {
+    const [re, im] = digitalResponse(tf, hz);
+    return { re, im };
+  });
+}
+
+/** The stage's analog small-signal gain at each frequency (circuit: linearised at rest). */
+export function stageAnalogResponse(
+  stage: Stage<number>,
+  ctx: CircuitContext,
+  knobs: Record<string, number>,
+  frequenciesHz: readonly number[],
+): ComplexGain[] {
+  if (stage.type === 'circuit') return circuitStageResponse(stage, ctx, knobs, frequenciesHz);
+  const tf = stageSmallSignal(stage, ctx, knobs);
+  return frequenciesHz.map((hz) => {
+    const [re, im] = analogResponse(tf, hz);
+    return { re, im };
+  });
+}
+
+/**
+ * Sum of the stage's small-signal time constants, seconds: a1 / a0 of its denominator
+ * 1 + a1 s + ... (Vieta), an upper bound on its slowest time constant.
+ */
+export function stageTimeConstantSum(stage: Stage<number>, ctx: CircuitContext, knobs: Record<string, number>): number {
+  if (stage.type === 'circuit') {
+    const { system, operatingPoint } = analyseCircuitStage(stage, ctx, knobs);
+    return openCircuitTimeConstantSum(system, operatingPoint);
+  }
+  const { a } = stageSmallSignal(stage, ctx, knobs);
+  return a.length > 1 && a[0] !== 0 ? Math.abs(a[1] / a[0]) : 0;
 }

@@ -35,14 +35,14 @@ export function registerCheckCommand(program: Command): void {
     .command('check')
     .description('print a design\'s electrical facts and warnings (impedance, corners, gain, headroom, diode currents, E-series)')
     .argument('<design>', 'design file (JSON)')
-    .option('--json', 'print JSON: { "facts": [...], "warnings": [{ "code", "stage", "message" }] }')
+    .option('--json', 'print JSON: { "facts": [...], "warnings": [{ "code", "stage", "message" }], "operatingPoint": { "<stageId>": { "<node>": volts } } }')
     .option('--input-peak <volts>', 'worst input peak at the jack, volts', '1')
     .option('--parts <file>', 'extra parts library (JSON) to merge')
     .action(async (designPath: string, flags: CheckFlags) => {
       const inputPeakVolts = parseValue(flags.inputPeak, '--input-peak', 'volt');
       const design = await readDesignFile(designPath, loadPartsLibrary(flags.parts));
       const result = checkDesign(design, { inputPeakVolts });
-      if (flags.json) process.stdout.write(`${JSON.stringify({ facts: result.facts, warnings: result.warnings }, null, 2)}\n`);
+      if (flags.json) process.stdout.write(`${JSON.stringify({ facts: result.facts, warnings: result.warnings, operatingPoint: result.operatingPoint }, null, 2)}\n`);
       else process.stdout.write(formatCheckReport(design.name, result));
     });
 }

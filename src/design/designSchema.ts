@@ -47,6 +47,8 @@ const KIND_SCHEMAS: Readonly<Record<Exclude<FieldKind, 'stageType'>, JsonSchema>
   opamp: { type: 'string', minLength: 1 },
   stages: { type: 'array', minItems: 1, items: { oneOf: STAGE_TYPES.map((type) => ref(`${type}Stage`)) } },
   parts: ref('parts'),
+  node: { type: 'string', pattern: '^[A-Za-z0-9_-]+$' },
+  elements: { type: 'array', minItems: 1, items: { type: 'object' } },
 };
 
 /** A closed object schema from a field table; `type` fields become a constant. */

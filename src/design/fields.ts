@@ -30,6 +30,8 @@ export type FieldKind =
   | 'diode' // part name or inline diode object
   | 'opamp' // part name
   | 'stages'
+  | 'node'
+  | 'elements'
   | 'parts'
   | 'text';
 
@@ -49,7 +51,16 @@ const STAGE_HEAD: FieldTable = {
   type: required('stageType', 'Stage type'),
 };
 
+/** A `circuit` stage: any schematic as a list of elements (see ELEMENT_FIELDS). */
+export const CIRCUIT_STAGE_FIELDS: FieldTable = {
+  ...STAGE_HEAD,
+  input: required('node', 'Node driven by the previous stage (or the take) as an ideal source at 0 V DC'),
+  output: required('node', 'Node whose voltage (minus its DC operating point) is the stage output'),
+  elements: required('elements', 'Resistors, capacitors, pots, diodes, op-amps and transistors, each with its nodes'),
+};
+
 export const STAGE_FIELDS: Readonly<Record<StageType, FieldTable>> = {
+  circuit: CIRCUIT_STAGE_FIELDS,
   input: {
     ...STAGE_HEAD,
     series: optional('resistanceOrZero', 'Series resistor from the jack, ohms (default 0)'),

@@ -185,6 +185,8 @@ function parseClipper(stage: StageReader): ClipperStage {
 function parseTypedStage(type: StageType, stage: StageReader): Stage {
   const id = stage.id;
   switch (type) {
+    case 'circuit':
+      return stage.fail('uses the circuit stage type, which this build cannot read yet');
     case 'input':
       return { id, type, series: stage.optionalResistance('series', 0, true) as Resistance, coupling: stage.capacitance('coupling'), pulldown: stage.resistance('pulldown') };
     case 'gain':

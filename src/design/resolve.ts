@@ -31,6 +31,8 @@ export function resistanceRange(r: Resistance): { minOhms: number; maxOhms: numb
 function resolveStage(stage: Stage<Resistance>, knobs: Readonly<Record<string, number>>): Stage<number> {
   const ohms = (r: Resistance): number => resolveResistance(r, knobs);
   switch (stage.type) {
+    case 'circuit':
+      return stage; // pots keep their knobs; the netlist assembler reads the positions
     case 'input':
       return { ...stage, series: ohms(stage.series), pulldown: ohms(stage.pulldown) };
     case 'gain':

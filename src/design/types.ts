@@ -217,6 +217,7 @@ export interface CircuitStage {
 }
 
 export type Stage<R = Resistance> =
+  | CircuitStage
   | InputStage<R>
   | GainStage<R>
   | ClipperStage<R>

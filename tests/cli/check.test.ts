@@ -23,12 +23,12 @@ async function runCheck(...args: string[]): Promise<string> {
 afterEach(() => vi.restoreAllMocks());
 
 describe('clipbench check', () => {
-  test('--json prints { facts, warnings } with code, stage, message', async () => {
+  test('--json prints { facts, warnings, operatingPoint } with code, stage, message', async () => {
     const json = JSON.parse(await runCheck('fixtures/designs/night-drive.json', '--json')) as {
       facts: { code: string; stage: string; text: string }[];
       warnings: { code: string; stage: string; message: string }[];
     };
-    expect(Object.keys(json).sort()).toEqual(['facts', 'warnings']);
+    expect(Object.keys(json).sort()).toEqual(['facts', 'operatingPoint', 'warnings']);
     expect(json.facts.some((f) => f.code === 'gbw-bandwidth' && f.stage === 'amp')).toBe(true);
     expect(json.warnings.map((w) => Object.keys(w).sort())).toEqual([['code', 'message', 'stage']]);
   });

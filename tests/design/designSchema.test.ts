@@ -31,6 +31,6 @@ describe('shared/design.schema.json', () => {
       expect(Object.keys(stage.properties).sort(), type).toEqual(Object.keys(STAGE_FIELDS[type]).sort());
       expect(stage.additionalProperties).toBe(false);
     }
-    expect(STAGE_TYPES.sort()).toEqual(['clipper', 'gain', 'highpass', 'input', 'lowpass', 'tone', 'volume']);
+    expect(STAGE_TYPES.sort()).toEqual(['circuit', 'clipper', 'gain', 'highpass', 'input', 'lowpass', 'tone', 'volume']);
   });
 });
