@@ -13,6 +13,7 @@ import {
   measureResponse,
   predictResponse,
   responseFrequencies,
+  responseProbeVolts,
   type ResponseDisagreement,
   type ResponsePoint,
 } from './response.js';
@@ -44,8 +45,6 @@ export const DEFAULT_MEASURE_OPTIONS: MeasureOptions = {
 
 /** Prediction and measurement must agree within this wherever the chain is linear (issue spec). */
 export const RESPONSE_TOLERANCE_DB = 0.1;
-/** Level of the stepped sines for the measured response: low enough to keep diodes off. */
-export const RESPONSE_LEVEL_VOLTS = 0.001;
 
 const ALIAS_WINDOW = 32768;
 const SWEEP_POINTS = 25;
@@ -97,7 +96,7 @@ export function measureDesign(design: Design<number>, options: MeasureOptions): 
   const response = predictResponse(design, sampleRate, oversample, frequencies);
   const responseMeasured = measureResponse(
     chain,
-    { sampleRate, windowLength: TONE_WINDOW, amplitudeVolts: RESPONSE_LEVEL_VOLTS, settleSeconds: settle },
+    { sampleRate, windowLength: TONE_WINDOW, amplitudeVolts: responseProbeVolts(response), settleSeconds: settle },
     frequencies,
   );
   const [gainPoint] = predictResponse(design, sampleRate, oversample, [tone.fundamentalHz]);

@@ -11,6 +11,19 @@ import { coherentBin, createToneAnalyzer } from './coherentTone.js';
 import { runSteadyTone } from './toneRun.js';
 import { logSpaced } from './levelSweep.js';
 
+/** The response is probed with the output at or below this level, volts peak: small-signal for any gain. */
+export const RESPONSE_PROBE_OUTPUT_VOLTS = 0.001;
+
+/** Input amplitude for measuring a response: 1 mV, lowered by the largest predicted gain above 1 so the output stays at 1 mV. */
+export function responseProbeVolts(predicted: readonly ResponsePoint[]): number {
+  const peakGain = Math.max(1, ...predicted.map((point) => 10 ** (point.db / 20)));
+  return RESPONSE_PROBE_OUTPUT_VOLTS / peakGain;
+}
+
+/** What `predictResponse` is, for reports: the two kinds of stage are predicted differently. */
+export const PREDICTION_BASIS =
+  'prediction: circuit stages are the analog circuit linearised at rest; named stages are their own discretised models, so for those the agreement checks the render, not the discretisation';
+
 export interface ResponsePoint {
   hz: number;
   db: number;

@@ -6,6 +6,7 @@ import { loadPartsLibrary } from '../design/parts.js';
 import { readDesignFile } from '../design/parseDesign.js';
 import { resolveDesign } from '../design/resolve.js';
 import { DEFAULT_MEASURE_OPTIONS, measureDesign, type MeasureReport } from '../analysis/measureDesign.js';
+import { PREDICTION_BASIS } from '../analysis/response.js';
 import { formatRows } from '../report/table.js';
 import { writeMeasureHtml, writeMeasureJson } from '../report/measureReport.js';
 import { collect, parseOversample, parsePositiveNumber } from './options.js';
@@ -66,7 +67,7 @@ export function summarizeMeasurement(report: MeasureReport): string {
     const where = report.responseDisagreement.map((d) => `${d.hz.toFixed(0)} Hz`).join(', ');
     lines.push(`Predicted and measured response differ by more than 0.1 dB at: ${where} (the chain is not linear there at the test level)`);
   } else {
-    lines.push('Predicted and measured small-signal response agree within 0.1 dB from 20 Hz to 20 kHz.');
+    lines.push(`Predicted and measured small-signal response agree within 0.1 dB from 20 Hz to 20 kHz (${PREDICTION_BASIS}).`);
   }
   return `${lines.join('\n')}\n`;
 }

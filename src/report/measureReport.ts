@@ -1,5 +1,6 @@
 /** JSON and HTML output of the `measure` bench. */
 import type { MeasureReport } from '../analysis/measureDesign.js';
+import { PREDICTION_BASIS } from '../analysis/response.js';
 import { buildHtmlReport, type HtmlSection } from './html.js';
 import { renderLinePlotSvg, renderStemPlotSvg, type PlotRule } from './plots.js';
 import { writeHtmlReport, writeJsonReport, type NamedSvg } from './writeReports.js';
@@ -116,7 +117,7 @@ export async function writeMeasureHtml(path: string, report: MeasureReport): Pro
       heading: 'Frequency response',
       paragraphs: [
         report.responseDisagreement.length === 0
-          ? 'Predicted (stage models) and measured (stepped sines at 1 mV through the full model) agree within 0.1 dB.'
+          ? `Predicted and measured (stepped sines through the full model, output at most 1 mV) agree within 0.1 dB (${PREDICTION_BASIS}).`
           : `Predicted and measured differ by more than 0.1 dB at ${report.responseDisagreement.map((d) => `${d.hz.toFixed(0)} Hz`).join(', ')}.`,
       ],
       figures: [figure('response'), figure('phase')],
