@@ -116,6 +116,9 @@ export function createStageRun(stages: readonly Stage<number>[], ctx: CircuitCon
       processor = warmedUp(gainProcessorFactory(stage, gain), ctx, gain.output);
     } else if (stage.type === 'clipper') {
       processor = warmedUp(clipperProcessorFactory(designClipper(stage, ctx)), ctx);
+    } else if (stage.type === 'circuit') {
+      const design = designCircuitStage(stage, ctx, knobs);
+      processor = warmedUp(() => createCircuitStage(design), ctx);
     } else {
       processor = createStageProcessor(stage, ctx, knobs);
     }
