@@ -2,7 +2,7 @@
 import { mkdir } from 'node:fs/promises';
 import type { Command } from 'commander';
 import { runRenderJobs } from '../render/workerPool.js';
-import type { RenderJob } from '../render/renderJob.js';
+import { uniqueTakeNames, type RenderJob } from '../render/renderJob.js';
 import { formatRows } from '../report/table.js';
 import { addRenderOptions, parseBits, parseCalibration, parseOversample, parseThreads, type RenderFlagValues } from './options.js';
 import { createProgressBar } from './progress.js';
@@ -21,11 +21,13 @@ export function registerRenderCommand(program: Command): void {
   addRenderOptions(command, 'override a knob (drive=0.8) or a stage field (clip.diode=1n34a); repeatable')
     .action(async (designPath: string, inputs: string[], flags: RenderFlags) => {
       const scale = parseCalibration(flags.fullScale, flags.inputPeak);
-      const jobs: RenderJob[] = inputs.map((inputPath) => ({
+      const takeNames = uniqueTakeNames(inputs);
+      const jobs: RenderJob[] = inputs.map((inputPath, index) => ({
         designPath,
         partsPath: flags.parts,
         overrides: flags.set ?? [],
         inputPath,
+        takeName: takeNames[index],
         outputDir: flags.output,
         oversample: parseOversample(flags.oversample),
         scale,

@@ -19,7 +19,7 @@ import { referenceThdPercent } from '../analysis/referenceTone.js';
 import { DEFAULT_MEASURE_OPTIONS } from '../analysis/measureDesign.js';
 import type { SpectrumPoint } from '../analysis/analyzeTake.js';
 import { toJsonText } from '../report/writeReports.js';
-import { sanitizeFileStem, type RenderJob } from '../render/renderJob.js';
+import { sanitizeFileStem, uniqueTakeNames, type RenderJob } from '../render/renderJob.js';
 import { runRenderJobs, type JobOutcome } from '../render/workerPool.js';
 import type { LoudnessMatchReport, LoudnessMatchTarget } from '../render/loudnessMatch.js';
 import { writeDryTake } from './dryTake.js';
@@ -51,27 +51,12 @@ export interface CompareResult {
   pagePath: string;
 }
 
-/** Longest take name kept in output file names (the variant label follows it). */
-const TAKE_NAME_CHARS = 60;
-
 interface CheckedVariant {
   variant: Variant;
   number: number;
   overrides: string[];
   design: Design<number> | null;
   error?: string;
-}
-
-/** Output stems per take, unique even when two inputs share a file name. */
-function takeNames(inputPaths: readonly string[]): string[] {
-  const used = new Set<string>();
-  return inputPaths.map((inputPath) => {
-    const base = sanitizeFileStem(path.basename(inputPath, path.extname(inputPath))).slice(0, TAKE_NAME_CHARS);
-    let name = base;
-    for (let n = 2; used.has(name); n++) name = `${base}-${n}`;
-    used.add(name);
-    return name;
-  });
 }
 
 function variantStem(takeName: string, number: number, label: string): string {
@@ -101,7 +86,7 @@ export async function runCompare(options: CompareOptions): Promise<CompareResult
   const base = resolveDesign(await readDesignFile(options.designPath, parts, options.commonOverrides));
   const takes: DecodedWav[] = [];
   for (const inputPath of options.inputPaths) takes.push(await readWavFile(inputPath));
-  const names = takeNames(options.inputPaths);
+  const names = uniqueTakeNames(options.inputPaths);
   const inputs = [options.designPath, ...options.inputPaths, ...(options.partsPath ? [options.partsPath] : [])];
   const summaryPath = path.join(options.outputDir, 'summary.json');
   const pagePath = path.join(options.outputDir, 'index.html');

@@ -23,8 +23,10 @@ export interface RenderJob {
   overrides: string[];
   inputPath: string;
   outputDir: string;
-  /** File name stem of the outputs; defaults to "<take>--<design>". */
+  /** File name stem of the outputs; defaults to "<takeName>--<design>". */
   outputStem?: string;
+  /** The take's name in output file names, unique within the run (`uniqueTakeNames`); defaults to the input's base name. */
+  takeName?: string;
   oversample: OversampleFactor;
   scale: CalibrationScale;
   bits: WavOutputBits;
@@ -51,26 +53,45 @@ export interface RenderJobResult {
   referenceThdPercent?: number;
 }
 
-/** Keep letters, digits, dot, dash and underscore; never a path separator or "..". */
+/** Keep letters and digits of any script, dot, dash and underscore; never a path separator or "..". */
 export function sanitizeFileStem(text: string): string {
   const cleaned = text
-    .replace(/[^A-Za-z0-9._-]+/g, '_')
+    .normalize('NFC')
+    .replace(/[^\p{L}\p{N}\p{M}._-]+/gu, '_')
     .replace(/\.{2,}/g, '.')
     .replace(/^[._]+/, '')
     .slice(0, 120);
   return cleaned === '' ? 'render' : cleaned;
 }
 
-export function defaultOutputStem(inputPath: string, designName: string): string {
-  const take = path.basename(inputPath, path.extname(inputPath));
-  return sanitizeFileStem(`${take}--${designName}`);
+/** Longest take name kept in an output stem. */
+const TAKE_NAME_CHARS = 60;
+
+/**
+ * Readable file-name stems for the takes of one run, unique even when two inputs share a file name
+ * (`day1/take1.wav`, `day2/take1.wav` -> `take1`, `take1-2`) or sanitise to the same text.
+ */
+export function uniqueTakeNames(inputPaths: readonly string[]): string[] {
+  const used = new Set<string>();
+  return inputPaths.map((inputPath) => {
+    const base = sanitizeFileStem(path.basename(inputPath, path.extname(inputPath))).slice(0, TAKE_NAME_CHARS);
+    let name = base;
+    for (let n = 2; used.has(name.toLowerCase()); n++) name = `${base}-${n}`;
+    // Case-insensitive file systems would merge names that differ only in case.
+    used.add(name.toLowerCase());
+    return name;
+  });
+}
+
+export function defaultOutputStem(takeName: string, designName: string): string {
+  return sanitizeFileStem(`${takeName}--${designName}`);
 }
 
 export async function runRenderJob(job: RenderJob, onProgress?: RenderProgress): Promise<RenderJobResult> {
   const parts = loadPartsLibrary(job.partsPath);
   const design = resolveDesign(await readDesignFile(job.designPath, parts, job.overrides));
   const wav = await readWavFile(job.inputPath);
-  const stem = job.outputStem ?? defaultOutputStem(job.inputPath, design.name);
+  const stem = job.outputStem ?? defaultOutputStem(job.takeName ?? uniqueTakeNames([job.inputPath])[0], design.name);
   const wavPath = path.join(job.outputDir, `${stem}.wav`);
   const sidecarPath = path.join(job.outputDir, `${stem}.json`);
   const inputs = [job.inputPath, job.designPath, ...(job.partsPath ? [job.partsPath] : [])];

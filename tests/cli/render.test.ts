@@ -49,6 +49,20 @@ describe('clipbench render', () => {
     expect(readdirSync(out).filter((name) => name.endsWith('.tmp'))).toEqual([]);
   });
 
+  it('keeps every render when two takes share a file name or a name in another script (no data loss)', () => {
+    const day1 = path.join(dir, 'day1');
+    const day2 = path.join(dir, 'day2');
+    mkdirSync(day1);
+    mkdirSync(day2);
+    copyFileSync(monoTake, path.join(day1, 'take1.wav'));
+    copyFileSync(stereoTake, path.join(day2, 'take1.wav'));
+    copyFileSync(monoTake, path.join(day2, 'ギター.wav'));
+    const out = path.join(dir, 'same-names');
+    const result = runCli(['render', design, path.join(day1, 'take1.wav'), path.join(day2, 'take1.wav'), path.join(day2, 'ギター.wav'), '-o', out, '--oversample', '2']);
+    expect(result.status).toBe(0);
+    expect(readdirSync(out).filter((name) => name.endsWith('.wav')).sort()).toEqual(['take1--night-drive.wav', 'take1-2--night-drive.wav', 'ギター--night-drive.wav'].sort());
+  });
+
   it('gives byte-identical files on repeated runs', () => {
     const a = path.join(dir, 'repeat-a');
     const b = path.join(dir, 'repeat-b');
