@@ -90,6 +90,7 @@ export function registerCompareCommand(program: Command): void {
       const { summary, pagePath } = await runCompare({
         designPath,
         partsPath: flags.parts,
+        variantsPath: flags.variants,
         inputPaths: inputs,
         outputDir: flags.output,
         variants,

@@ -28,6 +28,7 @@ export function registerRenderCommand(program: Command): void {
         overrides: flags.set ?? [],
         inputPath,
         takeName: takeNames[index],
+        commandInputs: inputs,
         outputDir: flags.output,
         oversample: parseOversample(flags.oversample),
         scale,

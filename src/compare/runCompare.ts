@@ -31,6 +31,8 @@ import type { Variant } from './variants.js';
 export interface CompareOptions {
   designPath: string;
   partsPath?: string;
+  /** The `--variants` file, if any: an input no output may overwrite. */
+  variantsPath?: string;
   inputPaths: string[];
   outputDir: string;
   variants: Variant[];
@@ -87,7 +89,7 @@ export async function runCompare(options: CompareOptions): Promise<CompareResult
   const takes: DecodedWav[] = [];
   for (const inputPath of options.inputPaths) takes.push(await readWavFile(inputPath));
   const names = uniqueTakeNames(options.inputPaths);
-  const inputs = [options.designPath, ...options.inputPaths, ...(options.partsPath ? [options.partsPath] : [])];
+  const inputs = [options.designPath, ...options.inputPaths, ...[options.partsPath, options.variantsPath].filter((p): p is string => p !== undefined)];
   const summaryPath = path.join(options.outputDir, 'summary.json');
   const pagePath = path.join(options.outputDir, 'index.html');
   for (const output of [summaryPath, pagePath]) assertNotAnInput(output, inputs);
@@ -114,6 +116,7 @@ export async function runCompare(options: CompareOptions): Promise<CompareResult
         ...(options.match ? { match: options.match } : {}),
         // Measured in the job, on whichever thread renders it; the THD once per variant.
         measureWritten: true,
+        commandInputs: inputs,
         referenceThd: takeIndex === 0,
       });
     }

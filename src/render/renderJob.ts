@@ -25,6 +25,8 @@ export interface RenderJob {
   outputDir: string;
   /** File name stem of the outputs; defaults to "<takeName>--<design>". */
   outputStem?: string;
+  /** Every other input of the command (its other takes, a variants file): no output may overwrite one. */
+  commandInputs?: string[];
   /** The take's name in output file names, unique within the run (`uniqueTakeNames`); defaults to the input's base name. */
   takeName?: string;
   oversample: OversampleFactor;
@@ -94,7 +96,7 @@ export async function runRenderJob(job: RenderJob, onProgress?: RenderProgress):
   const stem = job.outputStem ?? defaultOutputStem(job.takeName ?? uniqueTakeNames([job.inputPath])[0], design.name);
   const wavPath = path.join(job.outputDir, `${stem}.wav`);
   const sidecarPath = path.join(job.outputDir, `${stem}.json`);
-  const inputs = [job.inputPath, job.designPath, ...(job.partsPath ? [job.partsPath] : [])];
+  const inputs = [job.inputPath, job.designPath, ...(job.partsPath ? [job.partsPath] : []), ...(job.commandInputs ?? [])];
   assertNotAnInput(wavPath, inputs);
   assertNotAnInput(sidecarPath, inputs);
 

@@ -1,4 +1,4 @@
-import { existsSync, readFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { runCli } from '../helpers/cli.js';
@@ -26,6 +26,18 @@ describe('clipbench compare', () => {
     expect(summary.loudnessMatch).toEqual({ targetLufs: -18, ceilingDbfs: -1 });
     expect(summary.takes[0].entries).toHaveLength(3);
     expect(existsSync(path.join(out, 'take--v02-clip.diode_1n34a.wav'))).toBe(true);
+  });
+
+  it('refuses a --variants file inside -o that an output would overwrite, and leaves it as it was', () => {
+    const out = path.join(dir, 'variants-inside');
+    mkdirSync(out);
+    const variantsPath = path.join(out, 'summary.json');
+    const text = JSON.stringify({ variants: [{ label: 'a', set: { drive: 0.2 } }, { label: 'b', set: { drive: 0.8 } }] });
+    writeFileSync(variantsPath, text);
+    const result = runCli(['compare', NIGHT_DRIVE, take, '--variants', variantsPath, '-o', out, '--oversample', '2']);
+    expect(result.status).not.toBe(0);
+    expect(result.stderr).toMatch(/refusing to overwrite the input file/);
+    expect(readFileSync(variantsPath, 'utf8')).toBe(text);
   });
 
   it('keeps the circuit level with --no-match (gain 0, loudness as rendered)', () => {

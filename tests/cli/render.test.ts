@@ -63,6 +63,20 @@ describe('clipbench render', () => {
     expect(readdirSync(out).filter((name) => name.endsWith('.wav')).sort()).toEqual(['take1--night-drive.wav', 'take1-2--night-drive.wav', 'ギター--night-drive.wav'].sort());
   });
 
+  it('refuses to overwrite another take of the same command (an earlier render picked up by a glob)', () => {
+    const folder = path.join(dir, 'glob');
+    mkdirSync(folder);
+    const takePath = path.join(folder, 'take.wav');
+    copyFileSync(monoTake, takePath);
+    expect(runCli(['render', design, takePath, '-o', folder, '--oversample', '2']).status).toBe(0);
+    const earlier = path.join(folder, 'take--night-drive.wav');
+    const before = readFileSync(earlier);
+    const result = runCli(['render', design, takePath, earlier, '-o', folder, '--oversample', '2']);
+    expect(result.status).not.toBe(0);
+    expect(result.stderr).toMatch(/refusing to overwrite the input file/);
+    expect(readFileSync(earlier).equals(before)).toBe(true);
+  });
+
   it('gives byte-identical files on repeated runs', () => {
     const a = path.join(dir, 'repeat-a');
     const b = path.join(dir, 'repeat-b');
