@@ -18,8 +18,34 @@ export async function writeFileAtomic(path: string, data: string | Uint8Array): 
   await writeFileAtomicWith(path, (handle) => handle.writeFile(data));
 }
 
-/** Like `writeFileAtomic`, with the content written by `write` through an open handle (for streaming). */
+/** A device, pipe or socket (e.g. /dev/stdout, /dev/null, a FIFO): written directly, never replaced by a rename. */
+function isSpecialFile(path: string): boolean {
+  try {
+    const target = statSync(path);
+    return !target.isFile() && !target.isDirectory();
+  } catch {
+    return false;
+  }
+}
+
+/**
+ * Like `writeFileAtomic`, with the content written by `write` through an open handle (for streaming).
+ * A target that is a device, pipe or socket is written straight into (it cannot hold a partial file).
+ */
 export async function writeFileAtomicWith(path: string, write: (handle: FileHandle) => Promise<void>): Promise<void> {
+  if (isSpecialFile(path)) {
+    try {
+      const handle = await open(path, 'w');
+      try {
+        await write(handle);
+      } finally {
+        await handle.close();
+      }
+    } catch (error) {
+      throw describeWriteError(error, path);
+    }
+    return;
+  }
   temporaryCounter += 1;
   const temporaryPath = join(dirname(path), `.${basename(path)}.${process.pid}.${temporaryCounter}.tmp`);
   try {

@@ -1,4 +1,5 @@
-import { linkSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
+import { spawn, spawnSync } from 'node:child_process';
+import { linkSync, lstatSync, mkdirSync, statSync, mkdtempSync, readdirSync, readFileSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { basename, join, relative } from 'node:path';
 import { afterAll, describe, expect, test } from 'vitest';
@@ -50,6 +51,30 @@ describe('writeFileAtomic', () => {
     await expect(writeFileAtomic(join(folder, 'out.wav'), 'x')).rejects.toThrow(UserError);
     expect(readdirSync(folder)).toEqual(['out.wav']);
     expect(readFileSync(join(folder, 'out.wav', 'keep.txt'), 'utf8')).toBe('keep');
+  });
+
+  test('a device behind a link (/dev/null) is written into, not replaced by a rename', async () => {
+    const folder = freshFolder();
+    const link = join(folder, 'report.json');
+    symlinkSync('/dev/null', link);
+    await writeFileAtomic(link, '{"x":1}\n');
+    expect(lstatSync(link).isSymbolicLink()).toBe(true);
+    expect(statSync('/dev/null').isCharacterDevice()).toBe(true);
+    expect(readdirSync(folder)).toEqual(['report.json']);
+  });
+
+  test('a named pipe receives the data and stays a pipe', async () => {
+    const folder = freshFolder();
+    const fifo = join(folder, 'pipe');
+    if (spawnSync('mkfifo', [fifo]).status !== 0) return; // no mkfifo on this system
+    const reader = spawn('cat', [fifo]);
+    let received = '';
+    reader.stdout.on('data', (chunk: Buffer) => (received += chunk.toString()));
+    const done = new Promise((resolve) => reader.on('close', resolve));
+    await writeFileAtomic(fifo, 'through the pipe');
+    await done;
+    expect(received).toBe('through the pipe');
+    expect(statSync(fifo).isFIFO()).toBe(true);
   });
 
   test('concurrent writes to one folder do not collide on temporary names', async () => {
