@@ -2,12 +2,56 @@
  * Safe output files: a file appears under its final name only when complete, and an output never
  * replaces one of the inputs.
  */
-import { realpathSync, statSync } from 'node:fs';
+import { readdirSync, realpathSync, rmSync, statSync } from 'node:fs';
 import { open, rename, rm, type FileHandle } from 'node:fs/promises';
 import { basename, dirname, join, resolve } from 'node:path';
 import { UserError } from '../errors.js';
 
 let temporaryCounter = 0;
+
+/** `.name.<pid>.<n>.tmp`: the temporary files of `writeFileAtomic`, with the writing process's id. */
+const TEMPORARY_NAME = /^\..+\.(\d+)\.\d+\.tmp$/;
+/** Folders this process writes into: swept once for stale temporary files, cleaned of its own on a signal. */
+const outputFolders = new Set<string>();
+
+function processIsAlive(pid: number): boolean {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (error) {
+    return (error as NodeJS.ErrnoException).code === 'EPERM';
+  }
+}
+
+/** Remove the temporary files in `folder` whose process id passes `belongs`. */
+function removeTemporaryFiles(folder: string, belongs: (pid: number) => boolean): void {
+  let names: string[];
+  try {
+    names = readdirSync(folder);
+  } catch {
+    return;
+  }
+  for (const name of names) {
+    const match = TEMPORARY_NAME.exec(name);
+    if (match && belongs(Number(match[1]))) rmSync(join(folder, name), { force: true });
+  }
+}
+
+/**
+ * Note a folder this process writes into; the first time, remove temporary files that processes no
+ * longer running left there (a run killed by SIGKILL or a power cut).
+ */
+export function noteOutputFolder(folder: string): void {
+  const key = resolve(folder);
+  if (outputFolders.has(key)) return;
+  outputFolders.add(key);
+  removeTemporaryFiles(key, (pid) => pid !== process.pid && !processIsAlive(pid));
+}
+
+/** Remove this process's temporary files from every noted folder (on SIGINT or SIGTERM). */
+export function removeOwnTemporaryFiles(): void {
+  for (const folder of outputFolders) removeTemporaryFiles(folder, (pid) => pid === process.pid);
+}
 
 /**
  * Writes `data` to a temporary name in the target's folder (`.name.<pid>.<n>.tmp`), flushes it and
@@ -46,6 +90,7 @@ export async function writeFileAtomicWith(path: string, write: (handle: FileHand
     }
     return;
   }
+  noteOutputFolder(dirname(path));
   temporaryCounter += 1;
   const temporaryPath = join(dirname(path), `.${basename(path)}.${process.pid}.${temporaryCounter}.tmp`);
   try {

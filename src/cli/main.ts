@@ -6,6 +6,7 @@
 import { Command, CommanderError } from 'commander';
 import { UserError } from '../errors.js';
 import { registerCommands } from './commands.js';
+import { removeOwnTemporaryFiles } from '../audio/atomicWrite.js';
 
 const program = new Command();
 program
@@ -16,6 +17,14 @@ program
   .exitOverride();
 
 registerCommands(program);
+
+// An interrupted run leaves no half-written files: ours are removed (render workers share our pid).
+for (const [signal, status] of [['SIGINT', 130], ['SIGTERM', 143]] as const) {
+  process.on(signal, () => {
+    removeOwnTemporaryFiles();
+    process.exit(status);
+  });
+}
 
 function reportFailure(error: unknown): never {
   const debug = process.argv.includes('--debug');

@@ -1,5 +1,6 @@
 /** `clipbench render <design.json> <input.wav...> -o <dir>` */
 import { mkdir } from 'node:fs/promises';
+import { noteOutputFolder } from '../audio/atomicWrite.js';
 import type { Command } from 'commander';
 import { runRenderJobs } from '../render/workerPool.js';
 import { uniqueTakeNames, type RenderJob } from '../render/renderJob.js';
@@ -35,6 +36,7 @@ export function registerRenderCommand(program: Command): void {
         bits: parseBits(flags.bits),
       }));
       await mkdir(flags.output, { recursive: true });
+      noteOutputFolder(flags.output);
       const bar = createProgressBar('rendering');
       const threads = parseThreads(flags.threads);
       const outcomes = await runRenderJobs(jobs, { threads, onProgress: (f) => bar.update(f) });

@@ -9,7 +9,7 @@ import { UserError } from '../errors.js';
 import { readWavFile, type DecodedWav } from '../audio/wavRead.js';
 import type { CalibrationScale } from '../audio/calibration.js';
 import type { WavOutputBits } from '../audio/wavWrite.js';
-import { assertNotAnInput, writeFileAtomic } from '../audio/atomicWrite.js';
+import { assertNotAnInput, noteOutputFolder, writeFileAtomic } from '../audio/atomicWrite.js';
 import { loadPartsLibrary, type PartsLibrary } from '../design/parts.js';
 import { readDesignFile } from '../design/parseDesign.js';
 import { resolveDesign } from '../design/resolve.js';
@@ -94,6 +94,7 @@ export async function runCompare(options: CompareOptions): Promise<CompareResult
   const pagePath = path.join(options.outputDir, 'index.html');
   for (const output of [summaryPath, pagePath]) assertNotAnInput(output, inputs);
   await mkdir(options.outputDir, { recursive: true });
+  noteOutputFolder(options.outputDir);
 
   const checked: CheckedVariant[] = [];
   for (const [index, variant] of options.variants.entries()) checked.push(await checkVariant(options, parts, variant, index + 1));

@@ -3,7 +3,7 @@ import { linkSync, lstatSync, mkdirSync, statSync, mkdtempSync, readdirSync, rea
 import { tmpdir } from 'node:os';
 import { basename, join, relative } from 'node:path';
 import { afterAll, describe, expect, test } from 'vitest';
-import { assertNotAnInput, writeFileAtomic } from '../../src/audio/atomicWrite.js';
+import { assertNotAnInput, noteOutputFolder, removeOwnTemporaryFiles, writeFileAtomic } from '../../src/audio/atomicWrite.js';
 import { UserError } from '../../src/errors.js';
 
 const root = mkdtempSync(join(tmpdir(), 'clipbench-atomic-'));
@@ -83,6 +83,24 @@ describe('writeFileAtomic', () => {
     await Promise.all(names.map((name) => writeFileAtomic(join(folder, name), name)));
     expect(readdirSync(folder).sort()).toEqual([...names].sort());
     for (const name of names) expect(readFileSync(join(folder, name), 'utf8')).toBe(name);
+  });
+});
+
+describe('temporary files of interrupted runs', () => {
+  test('stale ones of dead processes are swept on the next write; ours go on removeOwnTemporaryFiles', async () => {
+    const folder = freshFolder();
+    const finished = spawnSync(process.execPath, ['-e', '']);
+    const deadPid = finished.pid as number; // a process that has exited
+    const stale = `.take.wav.${deadPid}.1.tmp`;
+    const ours = `.page.html.${process.pid}.7.tmp`;
+    writeFileSync(join(folder, stale), 'half a render');
+    writeFileSync(join(folder, ours), 'being written');
+    writeFileSync(join(folder, 'keep.tmp'), 'not ours: no pid pattern');
+    await writeFileAtomic(join(folder, 'out.json'), '{}');
+    expect(readdirSync(folder).sort()).toEqual([ours, 'keep.tmp', 'out.json'].sort());
+    noteOutputFolder(folder);
+    removeOwnTemporaryFiles();
+    expect(readdirSync(folder).sort()).toEqual(['keep.tmp', 'out.json']);
   });
 });
 
