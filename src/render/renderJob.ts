@@ -3,6 +3,7 @@
  * in the output folder. A job is plain data so it can run in a worker thread.
  */
 import path from 'node:path';
+import { rm } from 'node:fs/promises';
 import { readWavFile } from '../audio/wavRead.js';
 import { writeWavFile, type WavOutputBits } from '../audio/wavWrite.js';
 import { assertNotAnInput, writeFileAtomic } from '../audio/atomicWrite.js';
@@ -111,9 +112,18 @@ export async function runRenderJob(job: RenderJob, onProgress?: RenderProgress):
     overrides: job.overrides,
     ...(match ? { loudnessMatch: match } : {}),
   };
-  await writeFileAtomic(sidecarPath, `${JSON.stringify(sidecar, null, 2)}\n`);
-  // Measured here, on the job's own thread, so that compare's measurements run on every core too.
-  const metrics = job.measureWritten ? await measureWrittenTake(wavPath) : undefined;
+  const written = [wavPath];
+  let metrics: TakeMetrics | undefined;
+  try {
+    await writeFileAtomic(sidecarPath, `${JSON.stringify(sidecar, null, 2)}\n`);
+    written.push(sidecarPath);
+    // Measured here, on the job's own thread, so that compare's measurements run on every core too.
+    if (job.measureWritten) metrics = await measureWrittenTake(wavPath);
+  } catch (error) {
+    // A failed job leaves none of its files (e.g. the disk filled between the WAV and its sidecar).
+    await Promise.all(written.map((file) => rm(file, { force: true })));
+    throw error;
+  }
   const thdPercent = job.referenceThd ? referenceThdPercent(design, job.oversample) : undefined;
   return {
     wavPath,

@@ -77,6 +77,15 @@ describe('clipbench render', () => {
     expect(readFileSync(earlier).equals(before)).toBe(true);
   });
 
+  it('a job whose sidecar cannot be written leaves no WAV behind and is reported', () => {
+    const out = path.join(dir, 'sidecar-fails');
+    mkdirSync(path.join(out, 'mono--night-drive.json'), { recursive: true }); // a folder holds the sidecar's name
+    const result = runCli(['render', design, monoTake, stereoTake, '-o', out, '--oversample', '2']);
+    expect(result.status).not.toBe(0);
+    expect(result.stderr).toMatch(/mono--night-drive\.json: cannot write, a folder has that name/);
+    expect(readdirSync(out).sort()).toEqual(['mono--night-drive.json', 'stereo--night-drive.json', 'stereo--night-drive.wav']);
+  });
+
   it('gives byte-identical files on repeated runs', () => {
     const a = path.join(dir, 'repeat-a');
     const b = path.join(dir, 'repeat-b');
