@@ -7,6 +7,7 @@ import { Command, CommanderError } from 'commander';
 import { UserError } from '../errors.js';
 import { registerCommands } from './commands.js';
 import { removeOwnTemporaryFiles } from '../audio/atomicWrite.js';
+import { releaseAllLocks } from '../audio/folderLock.js';
 
 const program = new Command();
 program
@@ -22,6 +23,7 @@ registerCommands(program);
 for (const [signal, status] of [['SIGINT', 130], ['SIGTERM', 143]] as const) {
   process.on(signal, () => {
     removeOwnTemporaryFiles();
+    releaseAllLocks();
     process.exit(status);
   });
 }

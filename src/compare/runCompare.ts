@@ -19,7 +19,8 @@ import { referenceThdPercent } from '../analysis/referenceTone.js';
 import { DEFAULT_MEASURE_OPTIONS } from '../analysis/measureDesign.js';
 import type { SpectrumPoint } from '../analysis/analyzeTake.js';
 import { toJsonText } from '../report/writeReports.js';
-import { sanitizeFileStem, uniqueTakeNames, type RenderJob } from '../render/renderJob.js';
+import { sanitizeFileStem, takeFingerprint, uniqueTakeNames, type RenderJob, type TakeFingerprint } from '../render/renderJob.js';
+import { lockOutputFolder } from '../audio/folderLock.js';
 import { runRenderJobs, type JobOutcome } from '../render/workerPool.js';
 import type { LoudnessMatchReport, LoudnessMatchTarget } from '../render/loudnessMatch.js';
 import { writeDryTake } from './dryTake.js';
@@ -87,7 +88,11 @@ export async function runCompare(options: CompareOptions): Promise<CompareResult
   // The design as written (plus --set) must be valid: otherwise every variant would fail alike.
   const base = resolveDesign(await readDesignFile(options.designPath, parts, options.commonOverrides));
   const takes: DecodedWav[] = [];
-  for (const inputPath of options.inputPaths) takes.push(await readWavFile(inputPath));
+  const fingerprints: TakeFingerprint[] = [];
+  for (const inputPath of options.inputPaths) {
+    fingerprints.push(takeFingerprint(inputPath));
+    takes.push(await readWavFile(inputPath));
+  }
   const names = uniqueTakeNames(options.inputPaths);
   const inputs = [options.designPath, ...options.inputPaths, ...[options.partsPath, options.variantsPath].filter((p): p is string => p !== undefined)];
   const summaryPath = path.join(options.outputDir, 'summary.json');
@@ -95,6 +100,27 @@ export async function runCompare(options: CompareOptions): Promise<CompareResult
   for (const output of [summaryPath, pagePath]) assertNotAnInput(output, inputs);
   await mkdir(options.outputDir, { recursive: true });
   noteOutputFolder(options.outputDir);
+  const release = lockOutputFolder(options.outputDir);
+  try {
+    return await compareInto(options, { parts, base, takes, fingerprints, names, inputs, summaryPath, pagePath });
+  } finally {
+    release();
+  }
+}
+
+interface CompareInputs {
+  parts: PartsLibrary;
+  base: Design<number>;
+  takes: DecodedWav[];
+  fingerprints: TakeFingerprint[];
+  names: string[];
+  inputs: string[];
+  summaryPath: string;
+  pagePath: string;
+}
+
+/** The run itself, with the output folder locked and every take read once. */
+async function compareInto(options: CompareOptions, { parts, base, takes, fingerprints, names, inputs, summaryPath, pagePath }: CompareInputs): Promise<CompareResult> {
 
   const checked: CheckedVariant[] = [];
   for (const [index, variant] of options.variants.entries()) checked.push(await checkVariant(options, parts, variant, index + 1));
@@ -118,6 +144,7 @@ export async function runCompare(options: CompareOptions): Promise<CompareResult
         // Measured in the job, on whichever thread renders it; the THD once per variant.
         measureWritten: true,
         commandInputs: inputs,
+        inputFingerprint: fingerprints[takeIndex],
         referenceThd: takeIndex === 0,
       });
     }

@@ -3,7 +3,9 @@
  * in the output folder. A job is plain data so it can run in a worker thread.
  */
 import path from 'node:path';
+import { statSync } from 'node:fs';
 import { rm } from 'node:fs/promises';
+import { UserError } from '../errors.js';
 import { readWavFile } from '../audio/wavRead.js';
 import { writeWavFile, type WavOutputBits } from '../audio/wavWrite.js';
 import { assertNotAnInput, writeFileAtomic } from '../audio/atomicWrite.js';
@@ -28,6 +30,8 @@ export interface RenderJob {
   outputStem?: string;
   /** Every other input of the command (its other takes, a variants file): no output may overwrite one. */
   commandInputs?: string[];
+  /** The take as the command first read it: a job refuses a take that changed since (compare reads takes once). */
+  inputFingerprint?: TakeFingerprint;
   /** The take's name in output file names, unique within the run (`uniqueTakeNames`); defaults to the input's base name. */
   takeName?: string;
   oversample: OversampleFactor;
@@ -67,6 +71,25 @@ export function sanitizeFileStem(text: string): string {
   return cleaned === '' ? 'render' : cleaned;
 }
 
+/** Size and modification time of a take, to notice it being replaced during a run. */
+export interface TakeFingerprint {
+  bytes: number;
+  modifiedMs: number;
+}
+
+export function takeFingerprint(inputPath: string): TakeFingerprint {
+  try {
+    const stats = statSync(inputPath);
+    return { bytes: stats.size, modifiedMs: stats.mtimeMs };
+  } catch {
+    return { bytes: -1, modifiedMs: -1 }; // unreadable: reading it reports why
+  }
+}
+
+function sameFingerprint(a: TakeFingerprint, b: TakeFingerprint): boolean {
+  return a.bytes === b.bytes && a.modifiedMs === b.modifiedMs;
+}
+
 /** Longest take name kept in an output stem. */
 const TAKE_NAME_CHARS = 60;
 
@@ -94,6 +117,9 @@ export async function runRenderJob(job: RenderJob, onProgress?: RenderProgress):
   const parts = loadPartsLibrary(job.partsPath);
   const design = resolveDesign(await readDesignFile(job.designPath, parts, job.overrides));
   const wav = await readWavFile(job.inputPath);
+  if (job.inputFingerprint && !sameFingerprint(job.inputFingerprint, takeFingerprint(job.inputPath))) {
+    throw new UserError(`${job.inputPath}: the take changed while the run was going on; run again once it is final`);
+  }
   const stem = job.outputStem ?? defaultOutputStem(job.takeName ?? uniqueTakeNames([job.inputPath])[0], design.name);
   const wavPath = path.join(job.outputDir, `${stem}.wav`);
   const sidecarPath = path.join(job.outputDir, `${stem}.json`);

@@ -1,6 +1,7 @@
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
+import { spawnSync } from 'node:child_process';
 import { runCli } from '../helpers/cli.js';
 import { makeTempDir, NIGHT_DRIVE, writeDemoTake } from '../compare/compareFixtures.js';
 
@@ -38,6 +39,23 @@ describe('clipbench compare', () => {
     expect(result.status).not.toBe(0);
     expect(result.stderr).toMatch(/refusing to overwrite the input file/);
     expect(readFileSync(variantsPath, 'utf8')).toBe(text);
+  });
+
+  it('refuses a second run into a folder another live run holds, and takes over a stale lock', () => {
+    const out = path.join(dir, 'locked');
+    mkdirSync(out);
+    const lock = path.join(out, '.clipbench.lock');
+    writeFileSync(lock, `${process.pid}\n`); // this test process is alive: it stands for the other run
+    const refused = runCli(['compare', NIGHT_DRIVE, take, '--vary', 'drive=0.2,0.8', '-o', out, '--oversample', '2']);
+    expect(refused.status).not.toBe(0);
+    expect(refused.stderr.trim().split('\n')).toHaveLength(1);
+    expect(refused.stderr).toMatch(/another clipbench run \(process \d+\) is writing into this folder/);
+    expect(existsSync(path.join(out, 'summary.json'))).toBe(false);
+    const ended = spawnSync(process.execPath, ['-e', '']).pid as number;
+    writeFileSync(lock, `${ended}\n`);
+    const taken = runCli(['compare', NIGHT_DRIVE, take, '--vary', 'drive=0.2,0.8', '-o', out, '--oversample', '2']);
+    expect(taken.status).toBe(0);
+    expect(existsSync(lock)).toBe(false);
   });
 
   it('keeps the circuit level with --no-match (gain 0, loudness as rendered)', () => {
