@@ -1,6 +1,7 @@
 /** Parsers for command-line option values; each failure names the flag, the value and what is expected. */
 import type { Command } from 'commander';
 import { UserError } from '../errors.js';
+import { defaultThreadCount } from '../render/workerPool.js';
 import { OVERSAMPLE_FACTORS, type OversampleFactor } from '../circuit/chain.js';
 import type { CalibrationScale } from '../audio/calibration.js';
 import type { WavOutputBits } from '../audio/wavWrite.js';
@@ -43,6 +44,10 @@ export function parseThreads(text: string | undefined): number | undefined {
   if (text === undefined) return undefined;
   const threads = Number(text);
   if (!Number.isInteger(threads) || threads < 1) throw new UserError(`--threads: "${text}" is not a whole number of at least 1`);
+  const cores = defaultThreadCount();
+  if (threads > cores) {
+    process.stderr.write(`clipbench: warning: --threads ${threads} is more than this machine's ${cores} cores; the threads will share them (no faster, more memory)\n`);
+  }
   return threads;
 }
 

@@ -48,8 +48,10 @@ export async function runRenderJobs(jobs: RenderJob[], options: PoolOptions = {}
     new Promise((resolve) => {
       const worker = new Worker(workerScript, { workerData: { jobs, counter } });
       worker.on('message', (message: JobReply | { kind: 'finished' }) => {
-        if (message.kind === 'finished') resolve();
-        else handle(message);
+        if (message.kind !== 'finished') return handle(message);
+        // Its jobs are done: end the thread now rather than wait for handles it may keep open.
+        void worker.terminate();
+        resolve();
       });
       worker.on('error', (error) => {
         workerFailure = error.message;

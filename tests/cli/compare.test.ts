@@ -58,6 +58,14 @@ describe('clipbench compare', () => {
     expect(existsSync(lock)).toBe(false);
   });
 
+  it('warns when --threads asks for more threads than cores, finishes and exits', () => {
+    const out = path.join(dir, 'many-threads');
+    const result = runCli(['compare', NIGHT_DRIVE, take, '--vary', 'drive=0.1,0.3,0.5,0.7,0.9', '-o', out, '--oversample', '1', '--threads', '64']);
+    expect(result.status).toBe(0);
+    expect(result.stderr).toMatch(/warning: --threads 64 is more than this machine's \d+ cores/);
+    expect(existsSync(path.join(out, 'index.html'))).toBe(true);
+  });
+
   it('keeps the circuit level with --no-match (gain 0, loudness as rendered)', () => {
     const out = path.join(dir, 'raw');
     const result = runCli(['compare', NIGHT_DRIVE, take, '--vary', 'drive=0.1,0.9', '-o', out, '--oversample', '2', '--no-match']);
