@@ -16,6 +16,8 @@ import type { OversampleFactor } from '../circuit/chain.js';
 import type { RenderProgress } from '../circuit/renderChannel.js';
 import type { CalibrationScale } from '../audio/calibration.js';
 import { renderTakeInPlace, type RenderSummary } from './renderTake.js';
+import { voltsToDbfs } from './levels.js';
+import { peakOf } from '../audio/calibration.js';
 import { applyLoudnessMatch, type LoudnessMatchReport, type LoudnessMatchTarget } from './loudnessMatch.js';
 import { measureWrittenTake, type TakeMetrics } from '../analysis/takeMetrics.js';
 import { referenceThdPercent } from '../analysis/referenceTone.js';
@@ -69,6 +71,15 @@ export function sanitizeFileStem(text: string): string {
     .replace(/^[._]+/, '')
     .slice(0, 120);
   return cleaned === '' ? 'render' : cleaned;
+}
+
+/**
+ * The peak of the file as written, dBFS: after any loudness-match gain, with PCM clipped at full scale
+ * (a 32-bit float file keeps what lies beyond). Silence reads -999, as the other level figures do.
+ */
+function writtenPeakDbfs(channels: readonly Float32Array[], bits: WavOutputBits): number {
+  const peak = peakOf(channels);
+  return voltsToDbfs(bits === '32f' ? peak : Math.min(1, peak), 1);
 }
 
 /** Size and modification time of a take, to notice it being replaced during a run. */
@@ -132,6 +143,8 @@ export async function runRenderJob(job: RenderJob, onProgress?: RenderProgress):
   // `summary.output` stays the circuit's own level; `loudnessMatch` tells the gain the file got.
   const match = job.match ? applyLoudnessMatch(wav.channels, wav.sampleRate, job.match) : undefined;
   await writeWavFile(wavPath, wav.channels, wav.sampleRate, job.bits);
+  // peakVolts and the RMS figures stay the circuit's calibrated level; peakDbfs is the written file's own peak.
+  summary.output.peakDbfs = writtenPeakDbfs(wav.channels, job.bits);
   const sidecar = {
     ...summary,
     output: { ...summary.output, file: path.basename(wavPath), bits: job.bits },

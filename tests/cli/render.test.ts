@@ -86,6 +86,19 @@ describe('clipbench render', () => {
     expect(readdirSync(out).sort()).toEqual(['mono--night-drive.json', 'stereo--night-drive.json', 'stereo--night-drive.wav']);
   });
 
+  it("the sidecar's output peakDbfs is the written file's peak, also when the circuit went over full scale", async () => {
+    const out = path.join(dir, 'hot');
+    const result = runCli(['render', design, monoTake, '-o', out, '--oversample', '2', '--set', 'level=1', '--full-scale', '0.05']);
+    expect(result.status).toBe(0);
+    const sidecar = JSON.parse(readFileSync(path.join(out, 'mono--night-drive.json'), 'utf8'));
+    expect(sidecar.overs.count).toBeGreaterThan(0); // the circuit's level lies above full scale
+    const written = await readWavFile(path.join(out, 'mono--night-drive.wav'));
+    let peak = 0;
+    for (const v of written.channels[0]) peak = Math.max(peak, Math.abs(v));
+    expect(sidecar.output.peakDbfs).toBeCloseTo(20 * Math.log10(peak), 3);
+    expect(sidecar.output.peakDbfs).toBeLessThanOrEqual(0);
+  });
+
   it('gives byte-identical files on repeated runs', () => {
     const a = path.join(dir, 'repeat-a');
     const b = path.join(dir, 'repeat-b');
