@@ -24,7 +24,15 @@ export interface SpectrumPoint {
   db: number;
 }
 
-export type ToneSource = 'given' | 'detected' | 'none';
+/** 'not-found': a fundamental was given but no tone stands out there. */
+export type ToneSource = 'given' | 'detected' | 'none' | 'not-found';
+
+/**
+ * A given fundamental counts as a tone only when it carries more power than everything else in the
+ * audio band together. THD+N is the residual over the total (AES17 practice), so that is THD+N below
+ * 1/sqrt(2) = 70.7 %; otherwise its THD would describe noise or another note.
+ */
+const MAX_TONE_THDN_PERCENT = 100 / Math.SQRT2;
 
 export interface AnalyzeReport {
   file: string;
@@ -37,6 +45,8 @@ export interface AnalyzeReport {
   lufs: number | null;
   crestDb: number | null;
   toneSource: ToneSource;
+  /** Why no tone figures are given, when a fundamental was asked for and not found; else null. */
+  toneNote: string | null;
   fundamentalHz: number | null;
   thdPercent: number | null;
   thdnPercent: number | null;
@@ -150,6 +160,7 @@ export function analyzeTake(wav: DecodedWav, options: AnalyzeOptions = {}): Anal
   const mono = monoFoldDown(channels);
 
   let toneSource: ToneSource = 'none';
+  let toneNote: string | null = null;
   let tone: HarmonicReport | null = null;
   if (options.fundamentalHz !== undefined) {
     const nyquistHz = sampleRate / 2;
@@ -165,6 +176,11 @@ export function analyzeTake(wav: DecodedWav, options: AnalyzeOptions = {}): Anal
       throw error;
     }
     toneSource = 'given';
+    if (tone.thdnPercent > MAX_TONE_THDN_PERCENT) {
+      toneNote = `No tone near ${options.fundamentalHz} Hz: the strongest component there (${tone.fundamentalHz.toFixed(1)} Hz) is weaker than the rest of the signal (THD+N ${tone.thdnPercent.toFixed(0)} %)`;
+      tone = null;
+      toneSource = 'not-found';
+    }
   } else {
     const detectedHz = detectSteadyTone(mono, sampleRate);
     if (detectedHz !== null) {
@@ -184,6 +200,7 @@ export function analyzeTake(wav: DecodedWav, options: AnalyzeOptions = {}): Anal
     lufs: finiteOrNull(integratedLoudness(channels, sampleRate)),
     crestDb: peakDbfs !== null && rmsDbfs !== null ? peakDbfs - rmsDbfs : null,
     toneSource,
+    toneNote,
     fundamentalHz: tone?.fundamentalHz ?? null,
     thdPercent: tone?.thdPercent ?? null,
     thdnPercent: tone?.thdnPercent ?? null,

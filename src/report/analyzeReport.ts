@@ -41,12 +41,13 @@ function describeTake(report: AnalyzeReport): string {
 
 function describeTone(report: AnalyzeReport): string {
   if (report.toneSource === 'none') return 'No steady tone found; give --fundamental <Hz> to measure one.';
+  if (report.toneSource === 'not-found') return `${report.toneNote ?? 'no tone at the given fundamental'}.`;
   return report.toneSource === 'given' ? 'Tone measured at the given fundamental.' : 'Steady tone detected.';
 }
 
 export function formatAnalyzeSummary(report: AnalyzeReport): string {
   const parts = [`${describeTake(report)}\n\n`, formatRows(['level', 'value'], levelRows(report)), `\n${describeTone(report)}\n`];
-  if (report.toneSource !== 'none') {
+  if (report.fundamentalHz !== null) {
     parts.push('\n', formatRows(['tone', 'value'], toneRows(report)));
     if (report.harmonics.length > 0) parts.push('\n', formatRows(['order', 'Hz', 'dBc'], harmonicRows(report)));
   }
@@ -98,7 +99,7 @@ export function buildAnalyzeHtml(report: AnalyzeReport, plots: readonly NamedSvg
       heading: 'Tone',
       paragraphs: [describeTone(report)],
       tables:
-        report.toneSource === 'none'
+        report.fundamentalHz === null
           ? []
           : [
               { columns: ['tone', 'value'], rows: toneRows(report), numericColumns: [1] },

@@ -37,6 +37,17 @@ describe('analyzeTake', () => {
     for (let i = 1; i < report.spectrum.length; i++) expect(report.spectrum[i].hz).toBeGreaterThan(report.spectrum[i - 1].hz);
   });
 
+  it('says so when --fundamental names a frequency where no tone is, instead of a THD in the thousands of percent', () => {
+    const sine = sumOfSines(2 * SAMPLE_RATE, SAMPLE_RATE, [{ hz: 220, amplitude: 0.5 }]);
+    const report = analyzeTake(take([sine]), { fundamentalHz: 3100 });
+    expect(report.toneSource).toBe('not-found');
+    expect(report.toneNote).toMatch(/^No tone near 3100 Hz/);
+    expect(report.thdPercent).toBeNull();
+    expect(report.fundamentalHz).toBeNull();
+    // The tone that is there is still measured when named.
+    expectClose(analyzeTake(take([sine]), { fundamentalHz: 220 }).fundamentalHz!, 220, { atol: 0.05 });
+  });
+
   it('reports the harmonics of a distorted tone', () => {
     const x = sumOfSines(2 * SAMPLE_RATE, SAMPLE_RATE, [
       { hz: 440, amplitude: 0.5 },
@@ -49,7 +60,7 @@ describe('analyzeTake', () => {
     expect(Object.keys(report.harmonics[0]).sort()).toEqual(['dbc', 'hz', 'order']);
   });
 
-  it('finds no steady tone in noise, unless one is given', () => {
+  it('finds no steady tone in noise, given a fundamental or not', () => {
     const noise = uniformNoise(2 * SAMPLE_RATE, 3).map((v) => 0.1 * v);
     const report = analyzeTake(take([noise]));
     expect(report.toneSource).toBe('none');
@@ -58,8 +69,8 @@ describe('analyzeTake', () => {
     expect(report.thdnPercent).toBeNull();
     expect(report.harmonics).toEqual([]);
     const given = analyzeTake(take([noise]), { fundamentalHz: 500 });
-    expect(given.toneSource).toBe('given');
-    expectClose(given.fundamentalHz!, 500, { atol: 20 });
+    expect(given.toneSource).toBe('not-found');
+    expect(given.thdPercent).toBeNull();
   });
 
   it('keeps the JSON finite for digital silence', () => {
