@@ -10,7 +10,8 @@ import { runSteadyTone } from './toneRun.js';
 
 export interface AliasPoint {
   oversample: OversampleFactor;
-  aliasDbc: number;
+  /** null for a silent output. */
+  aliasDbc: number | null;
   aliasHz: number;
 }
 

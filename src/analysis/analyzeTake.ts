@@ -17,6 +17,7 @@ import { welch, type WelchResult } from '../dsp/welch.js';
 import { measureHarmonics, type HarmonicReport } from './harmonics.js';
 import { monoFoldDown } from '../audio/mixdown.js';
 import { peakOf, rmsOf } from '../audio/calibration.js';
+import { amplitudeDb } from '../dsp/decibels.js';
 
 export interface SpectrumPoint {
   hz: number;
@@ -75,10 +76,6 @@ const MIN_TONE_SEGMENT = 2048;
 const TONE_MIN_POWER_SHARE = 0.5;
 /** ...and its frequency stays within this fraction of the median across segments (about 17 cents). */
 const TONE_FREQUENCY_TOLERANCE = 0.01;
-
-function toDb(ratio: number, factor: 10 | 20): number | null {
-  return ratio > 0 ? factor * Math.log10(ratio) : null;
-}
 
 function finiteOrNull(value: number): number | null {
   return Number.isFinite(value) ? value : null;
@@ -154,9 +151,8 @@ export function detectSteadyTone(signal: Float64Array, sampleRate: number): numb
 export function analyzeTake(wav: DecodedWav, options: AnalyzeOptions = {}): AnalyzeReport {
   const { channels, sampleRate, frames } = wav;
   const peak = peakOf(channels);
-  const sampleCount = frames * channels.length;
-  const peakDbfs = toDb(peak, 20);
-  const rmsDbfs = sampleCount > 0 ? toDb(rmsOf(channels), 20) : null;
+  const peakDbfs = amplitudeDb(peak);
+  const rmsDbfs = amplitudeDb(rmsOf(channels));
   const mono = monoFoldDown(channels);
 
   let toneSource: ToneSource = 'none';

@@ -1,15 +1,17 @@
 /**
  * Spectral analysis of a synthetic test tone sampled coherently: the window holds a whole number of
  * periods (the fundamental sits exactly on FFT bin k0), so with a rectangular window every harmonic
- * and every alias of one lands on its own bin with no leakage (BRIEF section 3; e.g. IEEE Std 1241,
+ * and every alias of one lands on its own bin with no leakage (IEEE Std 1241,
  * coherent sampling). Levels are peak volts: |X[k]| * 2 / N.
  */
 import { createRealFft, isPowerOfTwo, type RealFft } from '../dsp/fft.js';
+import { amplitudeDb } from '../dsp/decibels.js';
 
+/** Levels in dB are null where there is nothing to compare (a silent fundamental or line). */
 export interface HarmonicLine {
   order: number;
   hz: number;
-  dbc: number;
+  dbc: number | null;
   volts: number;
 }
 
@@ -18,27 +20,21 @@ export interface ToneAnalysis {
   fundamentalVolts: number;
   /** Phase of the fundamental (cosine reference), radians. */
   fundamentalPhase: number;
-  /** sqrt(sum_{k>=2} V_k^2) / V_1, in percent (BRIEF section 3). */
-  thdPercent: number;
-  /** Everything but DC and the fundamental in 20 Hz-20 kHz over the total in that band (AES17 practice). */
-  thdnPercent: number;
+  /** sqrt(sum_{k>=2} V_k^2) / V_1, in percent (IEC 60268-3 THD relative to the fundamental); null for a silent output. */
+  thdPercent: number | null;
+  /** Everything but DC and the fundamental in 20 Hz-20 kHz over the total in that band (AES17 practice); null for silence. */
+  thdnPercent: number | null;
   harmonics: HarmonicLine[];
   /** Shares of the harmonic energy (orders >= 2) in even and odd orders; 0 when there is none. */
   evenShare: number;
   oddShare: number;
   /** Strongest component that is neither DC nor a harmonic, in 20 Hz-20 kHz, dB re fundamental. */
-  strongestInharmonicDbc: number;
+  strongestInharmonicDbc: number | null;
   strongestInharmonicHz: number;
 }
 
 const BAND_LOW_HZ = 20;
 const BAND_HIGH_HZ = 20000;
-/** Floor for levels in dB so that a perfect null stays a finite number in reports. */
-const FLOOR_DB = -300;
-
-function toDb(ratio: number): number {
-  return ratio > 0 ? Math.max(FLOOR_DB, 20 * Math.log10(ratio)) : FLOOR_DB;
-}
 
 /** Round `hz` to the nearest bin of an N-point window at `sampleRate` (at least bin 1). */
 export function coherentBin(hz: number, sampleRate: number, windowLength: number): number {
@@ -72,7 +68,7 @@ export function createToneAnalyzer(windowLength: number, sampleRate: number): To
       const harmonicLimitHz = Math.min(maxHarmonicHz, sampleRate / 2);
       for (let order = 2; order * k0 * binHz <= harmonicLimitHz && order * k0 < fft.binCount; order++) {
         const volts = Math.sqrt(power[order * k0]);
-        harmonics.push({ order, hz: order * k0 * binHz, dbc: toDb(volts / fundamentalVolts), volts });
+        harmonics.push({ order, hz: order * k0 * binHz, dbc: amplitudeDb(volts / fundamentalVolts), volts });
         harmonicPower += volts * volts;
         if (order % 2 === 0) evenPower += volts * volts;
       }
@@ -93,12 +89,12 @@ export function createToneAnalyzer(windowLength: number, sampleRate: number): To
         fundamentalHz: k0 * binHz,
         fundamentalVolts,
         fundamentalPhase: Math.atan2(spectrum[2 * k0 + 1], spectrum[2 * k0]),
-        thdPercent: fundamentalVolts > 0 ? (100 * Math.sqrt(harmonicPower)) / fundamentalVolts : 0,
-        thdnPercent: bandPower > 0 ? 100 * Math.sqrt(residual / bandPower) : 0,
+        thdPercent: fundamentalVolts > 0 ? (100 * Math.sqrt(harmonicPower)) / fundamentalVolts : null,
+        thdnPercent: bandPower > 0 ? 100 * Math.sqrt(residual / bandPower) : null,
         harmonics,
         evenShare: harmonicPower > 0 ? evenPower / harmonicPower : 0,
         oddShare: harmonicPower > 0 ? 1 - evenPower / harmonicPower : 0,
-        strongestInharmonicDbc: toDb(Math.sqrt(strongest) / fundamentalVolts),
+        strongestInharmonicDbc: amplitudeDb(Math.sqrt(strongest) / fundamentalVolts),
         strongestInharmonicHz: strongestBin * binHz,
       };
     },

@@ -8,7 +8,8 @@ import { runSteadyTone } from './toneRun.js';
 
 export interface LevelPoint {
   volts: number;
-  thdPercent: number;
+  /** null where the output is silent. */
+  thdPercent: number | null;
   outputPeakVolts: number;
 }
 
@@ -47,14 +48,16 @@ export function sweepThdByLevel(chain: Chain, options: LevelSweepOptions): Level
  * log-log axes between the two sweep points around the crossing; null when it never does.
  */
 export function findOnset(points: readonly LevelPoint[], thresholdPercent: number): number | null {
-  if (points.length > 0 && points[0].thdPercent >= thresholdPercent) return points[0].volts;
-  for (let i = 1; i < points.length; i++) {
-    const below = points[i - 1];
-    const above = points[i];
-    if (below.thdPercent < thresholdPercent && above.thdPercent >= thresholdPercent) {
+  // Silent points have no THD: they cannot cross a threshold.
+  const sounding = points.flatMap((p) => (p.thdPercent === null ? [] : [{ volts: p.volts, thd: p.thdPercent }]));
+  if (sounding.length > 0 && sounding[0].thd >= thresholdPercent) return sounding[0].volts;
+  for (let i = 1; i < sounding.length; i++) {
+    const below = sounding[i - 1];
+    const above = sounding[i];
+    if (below.thd < thresholdPercent && above.thd >= thresholdPercent) {
       const t =
-        (Math.log(thresholdPercent) - Math.log(Math.max(below.thdPercent, 1e-12))) /
-        (Math.log(above.thdPercent) - Math.log(Math.max(below.thdPercent, 1e-12)));
+        (Math.log(thresholdPercent) - Math.log(Math.max(below.thd, 1e-12))) /
+        (Math.log(above.thd) - Math.log(Math.max(below.thd, 1e-12)));
       return Math.exp(Math.log(below.volts) + t * (Math.log(above.volts) - Math.log(below.volts)));
     }
   }

@@ -57,22 +57,24 @@ export interface MeasureReport {
   oversample: OversampleFactor;
   freqHz: number;
   levelVolts: number;
-  thdPercent: number;
-  thdnPercent: number;
+  /** THD figures and levels in dB are null for a silent output. */
+  thdPercent: number | null;
+  thdnPercent: number | null;
   harmonics: HarmonicLine[];
   evenShare: number;
   oddShare: number;
   outputPeakVolts: number;
-  thdByLevel: { volts: number; thdPercent: number }[];
+  thdByLevel: { volts: number; thdPercent: number | null }[];
   onset: { '1': number | null; '3': number | null; '10': number | null };
   response: ResponsePoint[];
   responseMeasured: ResponsePoint[];
   responseDisagreement: ResponseDisagreement[];
   transfer: TransferPoint[];
-  aliasDbc: number;
+  aliasDbc: number | null;
   aliasHz: number;
   aliasByOversample: AliasPoint[];
-  gainDb: number;
+  /** null when the output is silent at the reference tone. */
+  gainDb: number | null;
   maxOutputVolts: number;
 }
 

@@ -45,8 +45,8 @@ export function measureSteadyTone(
   };
 }
 
-/** THD in percent of a design at the reference tone. */
-export function referenceThdPercent(design: Design<number>, oversample: OversampleFactor): number {
+/** THD in percent of a design at the reference tone; null for a silent output. */
+export function referenceThdPercent(design: Design<number>, oversample: OversampleFactor): number | null {
   const chain = buildChain(design, { sampleRate: REFERENCE_TONE.sampleRate, oversample });
   return measureSteadyTone(chain, design, REFERENCE_TONE).analysis.thdPercent;
 }

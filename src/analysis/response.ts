@@ -7,6 +7,7 @@
 import type { Design } from '../design/types.js';
 import type { Chain } from '../circuit/chain.js';
 import { isNonlinearStage, stagePredictedResponse } from '../circuit/stageModels.js';
+import { amplitudeDb, powerDb } from '../dsp/decibels.js';
 import { coherentBin, createToneAnalyzer } from './coherentTone.js';
 import { runSteadyTone } from './toneRun.js';
 import { logSpaced } from './levelSweep.js';
@@ -16,7 +17,7 @@ export const RESPONSE_PROBE_OUTPUT_VOLTS = 0.001;
 
 /** Input amplitude for measuring a response: 1 mV, lowered by the largest predicted gain above 1 so the output stays at 1 mV. */
 export function responseProbeVolts(predicted: readonly ResponsePoint[]): number {
-  const peakGain = Math.max(1, ...predicted.map((point) => 10 ** (point.db / 20)));
+  const peakGain = Math.max(1, ...predicted.map((point) => (point.db === null ? 0 : 10 ** (point.db / 20))));
   return RESPONSE_PROBE_OUTPUT_VOLTS / peakGain;
 }
 
@@ -26,7 +27,8 @@ export const PREDICTION_BASIS =
 
 export interface ResponsePoint {
   hz: number;
-  db: number;
+  /** null where the output is silent (e.g. a volume knob at 0). */
+  db: number | null;
   deg: number;
 }
 
@@ -60,7 +62,7 @@ export function predictResponse(
       const { re: hr, im: hi } = response[f];
       [re, im] = [re * hr - im * hi, re * hi + im * hr];
     }
-    return { hz, db: 10 * Math.log10(re * re + im * im), deg: wrapDegrees((Math.atan2(im, re) * 180) / Math.PI) };
+    return { hz, db: powerDb(re * re + im * im), deg: wrapDegrees((Math.atan2(im, re) * 180) / Math.PI) };
   });
 }
 
@@ -77,7 +79,7 @@ export function measureResponse(
     const output = analyzer.analyze(run.output, bin);
     return {
       hz,
-      db: 20 * Math.log10(output.fundamentalVolts / input.fundamentalVolts),
+      db: amplitudeDb(output.fundamentalVolts / input.fundamentalVolts),
       deg: wrapDegrees(((output.fundamentalPhase - input.fundamentalPhase) * 180) / Math.PI),
     };
   });
@@ -85,8 +87,8 @@ export function measureResponse(
 
 export interface ResponseDisagreement {
   hz: number;
-  predictedDb: number;
-  measuredDb: number;
+  predictedDb: number | null;
+  measuredDb: number | null;
 }
 
 /** Points where prediction and measurement differ by more than `toleranceDb`. */
@@ -97,5 +99,6 @@ export function compareResponses(
 ): ResponseDisagreement[] {
   return predicted
     .map((p, i) => ({ hz: p.hz, predictedDb: p.db, measuredDb: measured[i].db }))
-    .filter((point) => Math.abs(point.predictedDb - point.measuredDb) > toleranceDb);
+    // Both silent agree; one silent and the other not is a disagreement.
+    .filter((point) => (point.predictedDb === null || point.measuredDb === null ? point.predictedDb !== point.measuredDb : Math.abs(point.predictedDb - point.measuredDb) > toleranceDb));
 }

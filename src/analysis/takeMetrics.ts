@@ -9,6 +9,7 @@ import type { WelchResult } from '../dsp/welch.js';
 import { measureLevels } from '../render/levels.js';
 import { logSpacedBands, longTermSpectrum, type SpectrumPoint } from './analyzeTake.js';
 import { monoFoldDown } from '../audio/mixdown.js';
+import { amplitudeDb } from '../dsp/decibels.js';
 
 export interface TakeMetrics {
   loudnessLufs: number | null;
@@ -51,8 +52,8 @@ export async function measureWrittenTake(wavPath: string): Promise<TakeMetrics> 
   const spectrum = longTermSpectrum(monoFoldDown(wav.channels), wav.sampleRate);
   return {
     loudnessLufs: finiteOrNull(integratedLoudness(wav.channels, wav.sampleRate)),
-    peakDbfs: levels.peakVolts > 0 ? 20 * Math.log10(levels.peakVolts) : null,
-    crestDb: levels.rmsVolts > 0 ? levels.crestDb : null,
+    peakDbfs: amplitudeDb(levels.peakVolts),
+    crestDb: levels.crestDb,
     centroidHz: spectrum === null ? null : spectralCentroidHz(spectrum),
     spectrum: spectrum === null ? [] : logSpacedBands(spectrum, wav.sampleRate),
   };

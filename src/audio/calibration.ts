@@ -37,11 +37,6 @@ export function rmsOf(channels: ReadonlyArray<Float32Array | Float64Array>): num
   return count === 0 ? 0 : Math.sqrt(sumOfSquares / count);
 }
 
-/** 20 log10(value) for a value relative to full scale; -Infinity for 0 (format it before JSON, which has no -Infinity). */
-export function toDbfs(value: number): number {
-  return 20 * Math.log10(Math.abs(value));
-}
-
 function requirePositiveVolts(volts: number, what: string): void {
   if (!Number.isFinite(volts) || volts <= 0) throw new UserError(`${what} must be a positive number of volts (got ${volts})`);
 }

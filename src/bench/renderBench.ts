@@ -15,6 +15,10 @@
  * so each factor's runs are spread over the whole timing phase; the fastest run is reported (noise
  * only ever adds time: other processes, a virtual machine's host) and the median beside it.
  *
+ * Circuit designs: the two-op-amp drive and the two-transistor fuzz (`circuit` stages), each at 8x on
+ * a take of `--circuit-seconds` (default 10, 0 to skip): x real time, ns per oversampled sample, and
+ * the largest disagreement of the rendered response with the analog circuit's (circuitBench.ts).
+ *
  * Parallel: `clipbench render` of 8 takes of 30 s (`--parallel-seconds S`, 0 to skip) in a fresh
  * process with `--threads 1` and with one thread per core (the pool `compare` also uses).
  *
@@ -40,6 +44,7 @@ import type { DiodeSolverKind } from '../circuit/diodeNode.js';
 import { coherentBin, createToneAnalyzer } from '../analysis/coherentTone.js';
 import { formatRows } from '../report/table.js';
 import { measureParallelRenders, type ParallelResult } from './parallelRenders.js';
+import { benchCircuitDesign, CIRCUIT_BENCH_DESIGNS, type CircuitBenchResult } from './circuitBench.js';
 
 const BASE_RATE = 48000;
 const DESIGN_PATH = fileURLToPath(new URL('../../fixtures/designs/night-drive.json', import.meta.url));
@@ -63,6 +68,7 @@ export interface FactorResult {
 const WARM_UP_SECONDS = 1;
 const DEFAULT_RUNS = 7;
 const DEFAULT_PARALLEL_SECONDS = 30;
+const DEFAULT_CIRCUIT_SECONDS = 10;
 
 interface BenchArgs {
   seconds: number;
@@ -70,6 +76,7 @@ interface BenchArgs {
   factors: OversampleFactor[];
   memoryMinutes: number;
   parallelSeconds: number;
+  circuitSeconds: number;
   runs: number;
 }
 
@@ -79,6 +86,7 @@ const USAGE = `usage: npm run bench -- [options]
   --runs N               timing rounds; each renders the take once per factor (default ${DEFAULT_RUNS})
   --memory-minutes M     length of the memory probe's take, 0 to skip (default 10)
   --parallel-seconds S   take length of the parallel case, 0 to skip (default ${DEFAULT_PARALLEL_SECONDS})
+  --circuit-seconds S    take length of the circuit-design rows, 0 to skip (default ${DEFAULT_CIRCUIT_SECONDS})
   --json FILE            also write every figure as JSON
   --help                 this text`;
 
@@ -103,6 +111,7 @@ function parseBenchArgs(argv: string[]): BenchArgs | null {
         runs: { type: 'string' },
         'memory-minutes': { type: 'string' },
         'parallel-seconds': { type: 'string' },
+        'circuit-seconds': { type: 'string' },
         json: { type: 'string' },
         help: { type: 'boolean' },
       },
@@ -130,6 +139,7 @@ function parseBenchArgs(argv: string[]): BenchArgs | null {
     factors,
     memoryMinutes: numberOption(parsed['memory-minutes'], '--memory-minutes', 10, notNegative, 'a number of minutes (0 to skip)'),
     parallelSeconds: numberOption(parsed['parallel-seconds'], '--parallel-seconds', DEFAULT_PARALLEL_SECONDS, notNegative, 'a number of seconds (0 to skip)'),
+    circuitSeconds: numberOption(parsed['circuit-seconds'], '--circuit-seconds', DEFAULT_CIRCUIT_SECONDS, notNegative, 'a number of seconds (0 to skip)'),
     runs: numberOption(parsed.runs, '--runs', DEFAULT_RUNS, (n) => Number.isInteger(n) && n >= 1, 'a whole number of at least 1'),
   };
 }
@@ -183,7 +193,9 @@ function clipperFidelity(design: Design<number>, factor: OversampleFactor): Pick
   const b = analyzer.analyze(reference.output.subarray(settle), bin);
   let delta = 0;
   a.harmonics.forEach((h, i) => {
-    if (b.harmonics[i].dbc > -100) delta = Math.max(delta, Math.abs(h.dbc - b.harmonics[i].dbc));
+    const fast = h.dbc;
+    const exact = b.harmonics[i].dbc;
+    if (exact !== null && exact > -100) delta = Math.max(delta, fast === null ? Infinity : Math.abs(fast - exact));
   });
   return {
     clipperWaveformErrorDb: err > 0 ? 10 * Math.log10(err / ref) : -300,
@@ -207,6 +219,7 @@ export interface BenchReport {
   results: FactorResult[];
   memory: MemoryResult | null;
   parallel: ParallelResult | null;
+  circuits: CircuitBenchResult[];
 }
 
 /** Writes a long take to a temporary folder and renders it in a child process (its own peak RSS). */
@@ -307,8 +320,21 @@ async function main(): Promise<void> {
         `${parallel.allThreadsSeconds.toFixed(2)} s with ${parallel.threads} threads (${parallel.speedup.toFixed(2)}x)\n`,
     );
   }
+  const circuits: CircuitBenchResult[] = [];
+  if (args.circuitSeconds > 0) {
+    const circuitTake = synthesizeDemoTake({ sampleRate: BASE_RATE, seconds: args.circuitSeconds }).volts;
+    for (const name of CIRCUIT_BENCH_DESIGNS) circuits.push(await benchCircuitDesign(name, circuitTake, BASE_RATE, Math.min(args.runs, 3)));
+    process.stdout.write(
+      formatRows(
+        ['circuit design', 'oversample', 'x real time', 'ns/oversampled sample', 'response error to 10 kHz dB', 'to 20 kHz dB'],
+        circuits.map((c) => [c.design, `${c.oversample}x`, c.realTime.toFixed(1), c.nsPerOversampledSample.toFixed(0), c.responseErrorTo10kDb.toFixed(3), c.responseErrorTo20kDb.toFixed(3)]),
+      ),
+    );
+    const verdicts = circuits.map((c) => `${c.design} ${c.realTime >= TARGET_REAL_TIME_AT_8X ? 'met' : 'NOT met'}`);
+    process.stdout.write(`Circuit designs, goal >= ${TARGET_REAL_TIME_AT_8X}x real time at 8x: ${verdicts.join('; ')}\n`);
+  }
   if (args.json) {
-    const report: BenchReport = { seconds: args.seconds, sampleRate: BASE_RATE, design: design.name, results, memory, parallel };
+    const report: BenchReport = { seconds: args.seconds, sampleRate: BASE_RATE, design: design.name, results, memory, parallel, circuits };
     await writeFileAtomic(args.json, `${JSON.stringify(report, null, 2)}\n`);
   }
 }

@@ -7,7 +7,7 @@ import { synthesizeDemoTake } from '../audio/demoTake.js';
 import { writeWavFile } from '../audio/wavWrite.js';
 import { runRenderJobs } from '../render/workerPool.js';
 import type { RenderJob } from '../render/renderJob.js';
-import { formatRows } from '../report/table.js';
+import { formatRows, formatValue } from '../report/table.js';
 import { parseOversample } from './options.js';
 import { createProgressBar } from './progress.js';
 
@@ -51,7 +51,7 @@ export function registerDemoCommand(program: Command): void {
           path.basename(outcome.result.wavPath),
           s.input.peakVolts.toFixed(3),
           s.output.peakVolts.toFixed(3),
-          s.output.rmsDbfs.toFixed(1),
+          formatValue(s.output.rmsDbfs, 1),
           conducting.length > 0 ? `${(Math.max(...conducting) * 100).toFixed(1)} %` : '-',
         ];
       });

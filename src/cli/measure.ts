@@ -7,7 +7,7 @@ import { readDesignFile } from '../design/parseDesign.js';
 import { resolveDesign } from '../design/resolve.js';
 import { DEFAULT_MEASURE_OPTIONS, measureDesign, type MeasureReport } from '../analysis/measureDesign.js';
 import { PREDICTION_BASIS } from '../analysis/response.js';
-import { formatRows } from '../report/table.js';
+import { formatRows, formatSignificant, formatValue } from '../report/table.js';
 import { writeMeasureHtml, writeMeasureJson } from '../report/measureReport.js';
 import { collect, parseOversample, parsePositiveNumber } from './options.js';
 
@@ -34,16 +34,16 @@ export function summarizeMeasurement(report: MeasureReport): string {
     formatRows(
       ['figure', 'value'],
       [
-        ['THD', `${report.thdPercent.toPrecision(4)} %`],
-        ['THD+N', `${report.thdnPercent.toPrecision(4)} %`],
+        ['THD', formatSignificant(report.thdPercent, 4, '%')],
+        ['THD+N', formatSignificant(report.thdnPercent, 4, '%')],
         ['even / odd harmonic energy', `${(report.evenShare * 100).toFixed(1)} % / ${(report.oddShare * 100).toFixed(1)} %`],
-        ['small-signal gain', `${report.gainDb.toFixed(2)} dB`],
+        ['small-signal gain', formatValue(report.gainDb, 2, 'dB')],
         ['output peak at this level', formatVolts(report.outputPeakVolts)],
         ['maximum output swing', formatVolts(report.maxOutputVolts)],
         ['THD 1 % at input', formatVolts(report.onset['1'])],
         ['THD 3 % at input', formatVolts(report.onset['3'])],
         ['THD 10 % at input', formatVolts(report.onset['10'])],
-        ['strongest alias', `${report.aliasDbc.toFixed(1)} dBc at ${report.aliasHz.toFixed(0)} Hz`],
+        ['strongest alias', report.aliasDbc === null ? 'n/a (silent output)' : `${report.aliasDbc.toFixed(1)} dBc at ${report.aliasHz.toFixed(0)} Hz`],
       ],
     ),
   );
@@ -51,7 +51,7 @@ export function summarizeMeasurement(report: MeasureReport): string {
   lines.push(
     formatRows(
       ['order', 'Hz', 'dBc', 'volts'],
-      report.harmonics.slice(0, 10).map((h) => [String(h.order), h.hz.toFixed(1), h.dbc.toFixed(1), h.volts.toExponential(3)]),
+      report.harmonics.slice(0, 10).map((h) => [String(h.order), h.hz.toFixed(1), formatValue(h.dbc, 1), h.volts.toExponential(3)]),
     ),
   );
   if (report.aliasByOversample.length > 1) {
@@ -59,7 +59,7 @@ export function summarizeMeasurement(report: MeasureReport): string {
     lines.push(
       formatRows(
         ['factor', 'alias dBc', 'at Hz'],
-        report.aliasByOversample.map((a) => [String(a.oversample), a.aliasDbc.toFixed(1), a.aliasHz.toFixed(0)]),
+        report.aliasByOversample.map((a) => [String(a.oversample), formatValue(a.aliasDbc, 1), a.aliasHz.toFixed(0)]),
       ),
     );
   }

@@ -4,7 +4,7 @@ import { noteOutputFolder } from '../audio/atomicWrite.js';
 import type { Command } from 'commander';
 import { runRenderJobs } from '../render/workerPool.js';
 import { uniqueTakeNames, type RenderJob } from '../render/renderJob.js';
-import { formatRows } from '../report/table.js';
+import { formatRows, formatValue } from '../report/table.js';
 import { addRenderOptions, parseBits, parseCalibration, parseOversample, parseThreads, type RenderFlagValues } from './options.js';
 import { createProgressBar } from './progress.js';
 
@@ -56,8 +56,8 @@ export function registerRenderCommand(program: Command): void {
           outcome.result.wavPath,
           s.input.peakVolts.toFixed(3),
           s.output.peakVolts.toFixed(3),
-          s.output.peakDbfs.toFixed(1),
-          s.output.crestDb.toFixed(1),
+          formatValue(s.output.peakDbfs, 1),
+          formatValue(s.output.crestDb, 1),
           conducting.length > 0 ? `${(Math.max(...conducting) * 100).toFixed(1)} %` : '-',
           String(s.overs.count),
         ]);

@@ -156,12 +156,12 @@ async function compareInto(options: CompareOptions, { parts, base, takes, finger
   const steps = runnable.length + takes.length * (checked.length + 1);
   let stepsDone = 0;
   const step = (): void => options.onProgress?.('measuring', ++stepsDone / steps);
-  const thdByVariant = new Map<number, number>();
+  const thdByVariant = new Map<number, number | null>();
   for (const c of runnable) {
     const first = outcomes[jobIndex.get(`0:${c.number}`) ?? -1];
     // A job that failed (an unreadable first take, say) measured nothing: measure here.
     const thd = first?.ok ? first.result.referenceThdPercent : undefined;
-    if (c.design) thdByVariant.set(c.number, thd ?? referenceThdPercent(c.design, options.oversample));
+    if (c.design) thdByVariant.set(c.number, thd !== undefined ? thd : referenceThdPercent(c.design, options.oversample));
     step();
   }
 

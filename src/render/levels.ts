@@ -1,11 +1,12 @@
 /** Level statistics of multichannel signals held in digital full scale. */
 import { peakOf, rmsOf } from '../audio/calibration.js';
+import { amplitudeDb } from '../dsp/decibels.js';
 
 export interface LevelStats {
   peakVolts: number;
   rmsVolts: number;
-  /** Peak over RMS in dB; 0 for silence. */
-  crestDb: number;
+  /** Peak over RMS in dB; null for silence. */
+  crestDb: number | null;
 }
 
 /** Peak, RMS and crest factor over all channels, in volts (`voltsPerFullScale` x the samples). */
@@ -15,14 +16,13 @@ export function measureLevels(channels: readonly (Float32Array | Float64Array)[]
   return {
     peakVolts: peak * voltsPerFullScale,
     rmsVolts: rms * voltsPerFullScale,
-    crestDb: rms > 0 ? 20 * Math.log10(peak / rms) : 0,
+    crestDb: rms > 0 ? amplitudeDb(peak / rms) : null,
   };
 }
 
-/** dB relative to full scale for a value in volts; silence reads -999 (JSON has no -Infinity). */
-export function voltsToDbfs(volts: number, voltsAtFullScale: number): number {
-  if (volts <= 0) return -999;
-  return 20 * Math.log10(volts / voltsAtFullScale);
+/** dB relative to full scale for a value in volts; null for silence. */
+export function voltsToDbfs(volts: number, voltsAtFullScale: number): number | null {
+  return amplitudeDb(volts / voltsAtFullScale);
 }
 
 export interface OverReport {
@@ -30,8 +30,8 @@ export interface OverReport {
   count: number;
   /** Time of the first over in seconds, or null. */
   firstSeconds: number | null;
-  /** Highest magnitude in dBFS (can be above 0). */
-  maxDbfs: number;
+  /** Highest magnitude in dBFS (can be above 0); null for silence. */
+  maxDbfs: number | null;
 }
 
 /** Samples beyond digital full scale (|x| > 1). */

@@ -6,6 +6,7 @@
  */
 import { integratedLoudness } from '../dsp/loudness.js';
 import { measureLevels } from './levels.js';
+import { amplitudeDb } from '../dsp/decibels.js';
 
 export interface LoudnessMatchTarget {
   /** Integrated loudness to reach, LUFS (BS.1770-4). */
@@ -57,7 +58,7 @@ export function applyLoudnessMatch(channels: readonly (Float32Array | Float64Arr
     gainDb,
     ceilingLimited,
     loudnessAfterLufs: matched ? loudness + gainDb : null,
-    peakDbfs: peak > 0 ? 20 * Math.log10(peak) : null,
-    crestDb: before.rmsVolts > 0 ? before.crestDb : null,
+    peakDbfs: amplitudeDb(peak),
+    crestDb: before.crestDb,
   };
 }

@@ -59,7 +59,7 @@ export interface RenderJobResult {
   /** Present when the job asked for `measureWritten`. */
   metrics?: TakeMetrics;
   /** Present when the job asked for `referenceThd`. */
-  referenceThdPercent?: number;
+  referenceThdPercent?: number | null;
 }
 
 /** Keep letters and digits of any script, dot, dash and underscore; never a path separator or "..". */
@@ -75,9 +75,9 @@ export function sanitizeFileStem(text: string): string {
 
 /**
  * The peak of the file as written, dBFS: after any loudness-match gain, with PCM clipped at full scale
- * (a 32-bit float file keeps what lies beyond). Silence reads -999, as the other level figures do.
+ * (a 32-bit float file keeps what lies beyond); null for silence.
  */
-function writtenPeakDbfs(channels: readonly Float32Array[], bits: WavOutputBits): number {
+function writtenPeakDbfs(channels: readonly Float32Array[], bits: WavOutputBits): number | null {
   const peak = peakOf(channels);
   return voltsToDbfs(bits === '32f' ? peak : Math.min(1, peak), 1);
 }

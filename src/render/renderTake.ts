@@ -17,12 +17,13 @@ export interface RenderTakeOptions {
   onProgress?: RenderProgress;
 }
 
+/** Levels of a take or render; the dB figures are null for silence. */
 export interface LevelFigures {
   peakVolts: number;
-  peakDbfs: number;
+  peakDbfs: number | null;
   rmsVolts: number;
-  rmsDbfs: number;
-  crestDb: number;
+  rmsDbfs: number | null;
+  crestDb: number | null;
 }
 
 export interface RenderSummary {
@@ -85,13 +86,12 @@ export function renderTakeInPlace(design: Design<number>, wav: DecodedWav, optio
   const warnings: string[] = [];
   if (overs.count > 0) {
     warnings.push(
-      `${overs.count} samples exceed digital full scale (max ${overs.maxDbfs.toFixed(1)} dBFS, first at ${overs.firstSeconds?.toFixed(3)} s); use --bits 32f to keep them or a larger --full-scale`,
+      `${overs.count} samples exceed digital full scale (max ${overs.maxDbfs?.toFixed(1)} dBFS, first at ${overs.firstSeconds?.toFixed(3)} s); use --bits 32f to keep them or a larger --full-scale`,
     );
   }
-  if (output.rmsDbfs - input.rmsDbfs > HOT_RENDER_DB) {
-    warnings.push(
-      `render is ${(output.rmsDbfs - input.rmsDbfs).toFixed(1)} dB louder (RMS) than its input: start playback at a low volume`,
-    );
+  const louderDb = output.rmsDbfs !== null && input.rmsDbfs !== null ? output.rmsDbfs - input.rmsDbfs : null;
+  if (louderDb !== null && louderDb > HOT_RENDER_DB) {
+    warnings.push(`render is ${louderDb.toFixed(1)} dB louder (RMS) than its input: start playback at a low volume`);
   }
 
   return {

@@ -1,6 +1,7 @@
 /** JSON and HTML output of the `measure` bench. */
 import type { MeasureReport } from '../analysis/measureDesign.js';
 import { PREDICTION_BASIS } from '../analysis/response.js';
+import { formatSignificant, formatValue } from './table.js';
 import { buildHtmlReport, type HtmlSection } from './html.js';
 import { renderLinePlotSvg, renderStemPlotSvg, type PlotRule } from './plots.js';
 import { writeHtmlReport, writeJsonReport, type NamedSvg } from './writeReports.js';
@@ -24,7 +25,7 @@ async function measurePlots(report: MeasureReport): Promise<NamedSvg[]> {
         yLabel: 'level (dBc)',
         baseline: -140,
         yDomain: [-140, 0],
-        stems: report.harmonics.map((h) => ({ x: h.hz, y: Math.max(-140, h.dbc), label: String(h.order) })),
+        stems: report.harmonics.map((h) => ({ x: h.hz, y: Math.max(-140, h.dbc ?? -140), label: String(h.order) })),
       }),
     },
     {
@@ -35,7 +36,7 @@ async function measurePlots(report: MeasureReport): Promise<NamedSvg[]> {
         yLabel: 'THD (%)',
         xScale: 'log',
         yScale: 'log',
-        series: [{ name: 'THD', points: report.thdByLevel.map((p) => ({ x: p.volts, y: p.thdPercent })) }],
+        series: [{ name: 'THD', points: report.thdByLevel.flatMap((p) => (p.thdPercent === null ? [] : [{ x: p.volts, y: p.thdPercent }])) }],
         rules: onsetRules,
       }),
     },
@@ -47,8 +48,8 @@ async function measurePlots(report: MeasureReport): Promise<NamedSvg[]> {
         yLabel: 'gain (dB)',
         xScale: 'log',
         series: [
-          { name: 'predicted', points: report.response.map((p) => ({ x: p.hz, y: p.db })) },
-          { name: 'measured', points: report.responseMeasured.map((p) => ({ x: p.hz, y: p.db })) },
+          { name: 'predicted', points: report.response.flatMap((p) => (p.db === null ? [] : [{ x: p.hz, y: p.db }])) },
+          { name: 'measured', points: report.responseMeasured.flatMap((p) => (p.db === null ? [] : [{ x: p.hz, y: p.db }])) },
         ],
       }),
     },
@@ -91,12 +92,12 @@ export async function writeMeasureHtml(path: string, report: MeasureReport): Pro
         {
           columns: ['figure', 'value'],
           rows: [
-            ['THD', `${report.thdPercent.toPrecision(4)} %`],
-            ['THD+N', `${report.thdnPercent.toPrecision(4)} %`],
-            ['small-signal gain', `${report.gainDb.toFixed(2)} dB`],
+            ['THD', formatSignificant(report.thdPercent, 4, '%')],
+            ['THD+N', formatSignificant(report.thdnPercent, 4, '%')],
+            ['small-signal gain', formatValue(report.gainDb, 2, 'dB')],
             ['maximum output swing', `${report.maxOutputVolts.toFixed(3)} V`],
             ['THD 1 % / 3 % / 10 % at input', [report.onset['1'], report.onset['3'], report.onset['10']].map((v) => fmt(v, 4, 'V')).join(' / ')],
-            ['strongest alias', `${report.aliasDbc.toFixed(1)} dBc at ${report.aliasHz.toFixed(0)} Hz`],
+            ['strongest alias', report.aliasDbc === null ? 'n/a (silent output)' : `${report.aliasDbc.toFixed(1)} dBc at ${report.aliasHz.toFixed(0)} Hz`],
           ],
         },
       ],
@@ -106,7 +107,7 @@ export async function writeMeasureHtml(path: string, report: MeasureReport): Pro
       tables: [
         {
           columns: ['order', 'Hz', 'dBc', 'volts'],
-          rows: report.harmonics.map((h) => [String(h.order), h.hz.toFixed(1), h.dbc.toFixed(2), h.volts.toExponential(3)]),
+          rows: report.harmonics.map((h) => [String(h.order), h.hz.toFixed(1), formatValue(h.dbc, 2), h.volts.toExponential(3)]),
           numericColumns: [0, 1, 2, 3],
         },
       ],
@@ -130,7 +131,7 @@ export async function writeMeasureHtml(path: string, report: MeasureReport): Pro
       tables: [
         {
           columns: ['factor', 'alias dBc', 'at Hz'],
-          rows: report.aliasByOversample.map((a) => [String(a.oversample), a.aliasDbc.toFixed(1), a.aliasHz.toFixed(0)]),
+          rows: report.aliasByOversample.map((a) => [String(a.oversample), formatValue(a.aliasDbc, 1), a.aliasHz.toFixed(0)]),
           numericColumns: [0, 1, 2],
         },
       ],

@@ -20,6 +20,13 @@ export function formatValue(value: number | null, decimals: number, unit = ''): 
   return unit ? `${text} ${unit}` : text;
 }
 
+/** A number to `digits` significant digits with an optional unit; `MISSING_VALUE` for null or non-finite values. */
+export function formatSignificant(value: number | null, digits: number, unit = ''): string {
+  if (value === null || !Number.isFinite(value)) return MISSING_VALUE;
+  const text = value.toPrecision(digits);
+  return unit ? `${text} ${unit}` : text;
+}
+
 export function formatTable(table: TextTable): string {
   const widths = table.columns.map((column, i) =>
     Math.max(column.title.length, ...table.rows.map((row) => (row[i] ?? '').length)),

@@ -36,11 +36,11 @@ describe('coherent tone analysis', () => {
     }
     const result = createToneAnalyzer(n, RATE).analyze(signal, k0);
     expectClose(result.fundamentalVolts, 1, { rtol: 1e-9 });
-    expectClose(result.harmonics[0].dbc, -20, { atol: 1e-6 });
-    expectClose(result.harmonics[1].dbc, -40, { atol: 1e-6 });
-    expectClose(result.harmonics[2].dbc, -60, { atol: 1e-6 });
-    // THD = sqrt(0.1^2 + 0.01^2 + 0.001^2) (definition, BRIEF section 3).
-    expectClose(result.thdPercent, 100 * Math.hypot(0.1, 0.01, 0.001), { rtol: 1e-9 });
+    expectClose(result.harmonics[0].dbc!, -20, { atol: 1e-6 });
+    expectClose(result.harmonics[1].dbc!, -40, { atol: 1e-6 });
+    expectClose(result.harmonics[2].dbc!, -60, { atol: 1e-6 });
+    // THD = sqrt(0.1^2 + 0.01^2 + 0.001^2) (definition, IEC 60268-3).
+    expectClose(result.thdPercent!, 100 * Math.hypot(0.1, 0.01, 0.001), { rtol: 1e-9 });
   });
 
   it('finds an ideal square wave THD of sqrt(pi^2/8 - 1) = 48.34 % (Fourier series, odd harmonics 1/k)', () => {
@@ -53,7 +53,7 @@ describe('coherent tone analysis', () => {
     const result = createToneAnalyzer(n, n).analyze(signal, k0, n / 2);
     // The truncated series lacks the energy above Nyquist: sum over odd k > 2047 of 1/k^2 ~ 1/4094.
     const missing = 1 / (2 * 2047);
-    expectClose(result.thdPercent, 100 * Math.sqrt(Math.PI ** 2 / 8 - 1 - missing), { rtol: 1e-6 });
+    expectClose(result.thdPercent!, 100 * Math.sqrt(Math.PI ** 2 / 8 - 1 - missing), { rtol: 1e-6 });
     expectClose(100 * Math.sqrt(Math.PI ** 2 / 8 - 1), 48.34, { atol: 0.005 });
     expect(result.evenShare).toBeLessThan(1e-20);
   });
@@ -82,7 +82,7 @@ describe('frequency response', () => {
       // Textbook first-order RC low-pass; the bilinear transform is pre-warped at fc, where it is exact.
       const expected = -10 * Math.log10(1 + (point.hz / fc) ** 2);
       // Elsewhere frequency warping leaves a small error (0.06 dB at 5 kHz with 96 kHz sampling).
-      expectClose(point.db, expected, { atol: point.hz === fc ? 1e-9 : 0.1 });
+      expectClose(point.db!, expected, { atol: point.hz === fc ? 1e-9 : 0.1 });
     }
   });
 
@@ -93,7 +93,7 @@ describe('frequency response', () => {
     const predicted = predictResponse(d, RATE, 4, frequencies);
     const measured = measureResponse(chain, { sampleRate: RATE, windowLength: 16384, amplitudeVolts: 0.001, settleSeconds: settleSeconds(d, RATE) }, frequencies);
     predicted.forEach((p, i) => {
-      expectClose(measured[i].db, p.db, { atol: 0.1 });
+      expectClose(measured[i].db!, p.db!, { atol: 0.1 });
       expectClose(measured[i].deg, p.deg, { atol: 1 });
     });
   });
@@ -127,7 +127,7 @@ describe('aliasing', () => {
     const at1 = measureAliasing(d, 1, options).aliasDbc;
     const at8 = measureAliasing(d, 8, options).aliasDbc;
     expect(at1).toBeGreaterThan(-60);
-    expect(at8).toBeLessThan(at1 - 20);
+    expect(at8).toBeLessThan(at1! - 20);
   });
 });
 
@@ -139,7 +139,7 @@ describe('measureDesign', () => {
       expect(report).toHaveProperty(key);
     }
     expect(report.thdPercent).toBeLessThan(1e-3);
-    expectClose(report.gainDb, 0, { atol: 0.01 });
+    expectClose(report.gainDb!, 0, { atol: 0.01 });
     expect(report.onset['1']).toBeNull();
     expect(report.responseDisagreement).toEqual([]);
     // 2 V peak at the top of the sweep passes unchanged (the ideal part swings to +-4.5 V), up to the

@@ -1,5 +1,6 @@
 import { describe, expect, test } from 'vitest';
-import { calibrate, peakOf, rmsOf, toDbfs } from '../../src/audio/calibration.js';
+import { calibrate, peakOf, rmsOf } from '../../src/audio/calibration.js';
+import { amplitudeDb } from '../../src/dsp/decibels.js';
 import { encodeWav } from '../../src/audio/wavWrite.js';
 import { UserError } from '../../src/errors.js';
 import { expectClose } from '../helpers/expectClose.js';
@@ -67,7 +68,7 @@ describe('level helpers', () => {
     for (let i = 0; i < sine.length; i++) sine[i] = Math.sin((2 * Math.PI * 1000 * i) / 48_000); // whole periods
     expectClose(peakOf([sine]), 1, { atol: 1e-12 });
     expectClose(rmsOf([sine]), Math.SQRT1_2, { rtol: 1e-12 });
-    expectClose(toDbfs(rmsOf([sine])), -3.0103, { atol: 1e-4 });
+    expectClose(amplitudeDb(rmsOf([sine]))!, -3.0103, { atol: 1e-4 });
   });
 
   test('rms and peak run over all channels together', () => {
@@ -76,9 +77,10 @@ describe('level helpers', () => {
     expect(rmsOf([])).toBe(0);
   });
 
-  test('toDbfs: half scale is -6.02 dB, full scale 0 dB, silence -Infinity', () => {
-    expectClose(toDbfs(0.5), -6.0206, { atol: 1e-4 }); // 20 log10(2) = 6.0206
-    expect(toDbfs(1)).toBe(0);
-    expect(toDbfs(0)).toBe(Number.NEGATIVE_INFINITY);
+  test('amplitudeDb: half scale is -6.02 dB, full scale 0 dB, silence null (no level)', () => {
+    expectClose(amplitudeDb(0.5)!, -6.0206, { atol: 1e-4 }); // 20 log10(2) = 6.0206 (definition of the decibel)
+    expect(amplitudeDb(1)).toBe(0);
+    expect(amplitudeDb(0)).toBeNull();
+    expect(amplitudeDb(Infinity)).toBeNull();
   });
 });

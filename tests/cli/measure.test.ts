@@ -21,7 +21,7 @@ describe('clipbench measure', () => {
     }
     expect(Object.keys(report.onset).sort()).toEqual(['1', '10', '3']);
     expect(report.harmonics[0]).toEqual(expect.objectContaining({ order: 2 }));
-    // A symmetric 1N4148 pair: odd harmonics dominate (symmetric odd nonlinearity, BRIEF section 3).
+    // A symmetric 1N4148 pair: odd harmonics dominate (a symmetric odd nonlinearity makes no even harmonics; Fourier series symmetry).
     expect(report.harmonics[1].dbc).toBeGreaterThan(report.harmonics[0].dbc + 60);
     const page = readFileSync(html, 'utf8');
     expect(page).toMatch(/<svg/);
@@ -29,6 +29,21 @@ describe('clipbench measure', () => {
     for (const plot of ['harmonics', 'thd-by-level', 'response', 'phase', 'transfer']) {
       expect(existsSync(path.join(dir, `m-${plot}.svg`)), plot).toBe(true);
     }
+  });
+
+  it('a silent output (level knob at 0) gives null in JSON and n/a in the table, not -Infinity, -999 or THD 0 %', () => {
+    const dir = mkdtempSync(path.join(tmpdir(), 'clipbench-measure-silent-'));
+    const json = path.join(dir, 'm.json');
+    const result = runCli(['measure', design, '--oversample', '1', '--set', 'level=0', '--json', json]);
+    expect(result.stderr).toBe('');
+    expect(result.status).toBe(0);
+    const text = readFileSync(json, 'utf8');
+    expect(text).not.toMatch(/-999|Infinity|-300/);
+    const report = JSON.parse(text);
+    expect(report.thdPercent).toBeNull();
+    expect(report.gainDb).toBeNull();
+    expect(report.harmonics.every((h: { dbc: number | null }) => h.dbc === null)).toBe(true);
+    expect(result.stdout).toMatch(/THD\s+n\/a/);
   });
 
   it('refuses a test frequency outside the audio band', () => {
