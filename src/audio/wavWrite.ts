@@ -1,8 +1,11 @@
 /**
  * Encodes samples (digital full scale = 1) as a canonical 44-byte-header WAV: WAVE_FORMAT_PCM for
  * 16/24-bit, WAVE_FORMAT_IEEE_FLOAT for 32-bit float (container facts: see `wavFormat.ts`).
- * PCM: code = round(x * 2^(bits-1)) (Math.round: nearest, halves up), clipped to
- * [-2^(bits-1), 2^(bits-1) - 1]; no dither, so the same samples always give the same bytes.
+ * PCM: code = round(x * 2^(bits-1) + d) (Math.round: nearest, halves up), clipped to
+ * [-2^(bits-1), 2^(bits-1) - 1]. d = 0, or with `dither` (16-bit) TPDF dither of +-1 LSB: the
+ * difference of two uniform values, which decorrelates the quantisation error from the signal (common
+ * practice; e.g. Vanderkooy & Lipshitz, "Dither in digital audio", JAES 35(12), 1987). The dither
+ * comes from a fixed-seed generator per channel, so the same samples still give the same bytes.
  */
 import { UserError } from '../errors.js';
 import { writeFileAtomicWith } from './atomicWrite.js';
@@ -54,6 +57,35 @@ function writeHeader(bytes: Uint8Array, shape: WavShape, sampleRate: number, bit
   view.setUint32(40, shape.dataBytes, true);
 }
 
+/** Deterministic TPDF dither in LSB (xorshift32, Marsaglia, J. Stat. Softw. 8(14), 2003): u1 - u2, in (-1, 1). */
+class TpdfDither {
+  private state: number;
+
+  constructor(channel: number) {
+    this.state = (0x9e3779b9 ^ Math.imul(channel + 1, 0x85ebca6b)) >>> 0 || 1;
+  }
+
+  private uniform(): number {
+    let x = this.state;
+    x ^= x << 13;
+    x ^= x >>> 17;
+    x ^= x << 5;
+    this.state = x >>> 0;
+    return this.state / 4294967296;
+  }
+
+  next(): number {
+    return this.uniform() - this.uniform();
+  }
+}
+
+/** One dither generator per channel, or null for plain rounding. */
+type DitherSet = TpdfDither[] | null;
+
+function ditherFor(channelCount: number, bits: WavOutputBits, dither: boolean): DitherSet {
+  return dither && bits === '16' ? Array.from({ length: channelCount }, (_, channel) => new TpdfDither(channel)) : null;
+}
+
 /** Interleaves frames [start, end) of every channel into `bytes` from byte `offset` on. */
 function encodeFrames(
   channels: Float32Array[] | Float64Array[],
@@ -63,22 +95,23 @@ function encodeFrames(
   shape: WavShape,
   bytes: Uint8Array,
   offset: number,
+  dither: DitherSet,
 ): void {
   const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
   for (let channel = 0; channel < shape.channelCount; channel++) {
     const samples = channels[channel].subarray(start, end);
     const first = offset + channel * shape.bytesPerSample;
-    if (bits === '16') encodePcm16(view, samples, first, shape.blockAlign);
+    if (bits === '16') encodePcm16(view, samples, first, shape.blockAlign, dither?.[channel] ?? null);
     else if (bits === '24') encodePcm24(bytes, samples, first, shape.blockAlign);
     else encodeFloat32(view, samples, first, shape.blockAlign);
   }
 }
 
-export function encodeWav(channels: Float32Array[] | Float64Array[], sampleRate: number, bits: WavOutputBits): Uint8Array {
+export function encodeWav(channels: Float32Array[] | Float64Array[], sampleRate: number, bits: WavOutputBits, dither = false): Uint8Array {
   const shape = wavShape(channels, sampleRate, bits);
   const bytes = new Uint8Array(HEADER_BYTES + shape.dataBytes + shape.padBytes);
   writeHeader(bytes, shape, sampleRate, bits);
-  encodeFrames(channels, 0, shape.frames, bits, shape, bytes, HEADER_BYTES);
+  encodeFrames(channels, 0, shape.frames, bits, shape, bytes, HEADER_BYTES, ditherFor(shape.channelCount, bits, dither));
   return bytes;
 }
 
@@ -91,8 +124,10 @@ export async function writeWavFile(
   channels: Float32Array[] | Float64Array[],
   sampleRate: number,
   bits: WavOutputBits,
+  dither = false,
 ): Promise<void> {
   const shape = wavShape(channels, sampleRate, bits);
+  const ditherSet = ditherFor(shape.channelCount, bits, dither);
   const header = new Uint8Array(HEADER_BYTES);
   writeHeader(header, shape, sampleRate, bits);
   const chunk = new Uint8Array(Math.min(shape.frames, STREAM_CHUNK_FRAMES) * shape.blockAlign + shape.padBytes);
@@ -100,7 +135,7 @@ export async function writeWavFile(
     await handle.write(header);
     for (let start = 0; start < shape.frames; start += STREAM_CHUNK_FRAMES) {
       const end = Math.min(shape.frames, start + STREAM_CHUNK_FRAMES);
-      encodeFrames(channels, start, end, bits, shape, chunk, 0);
+      encodeFrames(channels, start, end, bits, shape, chunk, 0, ditherSet);
       await handle.write(chunk, 0, (end - start) * shape.blockAlign);
     }
     if (shape.padBytes > 0) await handle.write(new Uint8Array(shape.padBytes));
@@ -129,14 +164,16 @@ function writeAscii(bytes: Uint8Array, offset: number, text: string): void {
   for (let i = 0; i < text.length; i++) bytes[offset + i] = text.charCodeAt(i);
 }
 
-function quantize(value: number, fullScale: number): number {
-  const code = Math.round(value * fullScale);
+function quantize(value: number, fullScale: number, ditherLsb = 0): number {
+  const code = Math.round(value * fullScale + ditherLsb);
   return code < -fullScale ? -fullScale : code > fullScale - 1 ? fullScale - 1 : code;
 }
 
-function encodePcm16(view: DataView, samples: Float32Array | Float64Array, offset: number, stride: number): void {
+function encodePcm16(view: DataView, samples: Float32Array | Float64Array, offset: number, stride: number, dither: TpdfDither | null): void {
   const fullScale = pcmFullScale(16);
-  for (let i = 0; i < samples.length; i++, offset += stride) view.setInt16(offset, quantize(samples[i], fullScale), true);
+  for (let i = 0; i < samples.length; i++, offset += stride) {
+    view.setInt16(offset, quantize(samples[i], fullScale, dither === null ? 0 : dither.next()), true);
+  }
 }
 
 function encodePcm24(bytes: Uint8Array, samples: Float32Array | Float64Array, offset: number, stride: number): void {

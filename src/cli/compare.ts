@@ -99,6 +99,7 @@ export function registerCompareCommand(program: Command): void {
         oversample: parseOversample(flags.oversample),
         scale: parseCalibration(flags.fullScale, flags.inputPeak),
         bits: parseBits(flags.bits),
+        dither: flags.dither,
         threads: parseThreads(flags.threads),
         onProgress: (phase, fraction) => {
           const bar = (bars[phase] ??= createProgressBar(phase));

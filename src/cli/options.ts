@@ -58,6 +58,8 @@ export interface RenderFlagValues {
   fullScale?: string;
   inputPeak?: string;
   bits: string;
+  /** false with --no-dither. */
+  dither: boolean;
   parts?: string;
   threads?: string;
 }
@@ -70,6 +72,7 @@ export function addRenderOptions(command: Command, setHelp: string): Command {
     .option('--full-scale <V>', 'volts peak at 0 dBFS, in and out (default 1)')
     .option('--input-peak <V>', 'instead: scale each take so its peak is V volts')
     .option('--bits <bits>', 'output WAV: 16, 24 or 32f (float)', '24')
+    .option('--no-dither', '16-bit output rounded plainly, without TPDF dither')
     .option('--parts <file>', 'extra parts library (JSON)')
     .option('--threads <N>', 'render threads, this one and N - 1 workers (default: one per core)');
 }

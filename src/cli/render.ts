@@ -34,6 +34,7 @@ export function registerRenderCommand(program: Command): void {
         oversample: parseOversample(flags.oversample),
         scale,
         bits: parseBits(flags.bits),
+        dither: flags.dither,
       }));
       await mkdir(flags.output, { recursive: true });
       noteOutputFolder(flags.output);

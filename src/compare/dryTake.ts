@@ -12,9 +12,10 @@ export async function writeDryTake(
   wavPath: string,
   match: LoudnessMatchTarget | null,
   bits: WavOutputBits,
+  dither: boolean,
 ): Promise<LoudnessMatchReport | null> {
   const channels = wav.channels.map((channel) => Float64Array.from(channel));
   const report = match ? applyLoudnessMatch(channels, wav.sampleRate, match) : null;
-  await writeWavFile(wavPath, channels, wav.sampleRate, bits);
+  await writeWavFile(wavPath, channels, wav.sampleRate, bits, dither);
   return report;
 }

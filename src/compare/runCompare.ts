@@ -44,6 +44,7 @@ export interface CompareOptions {
   oversample: OversampleFactor;
   scale: CalibrationScale;
   bits: WavOutputBits;
+  dither: boolean;
   threads?: number;
   onProgress?: (phase: 'rendering' | 'measuring', fraction: number) => void;
 }
@@ -140,6 +141,7 @@ async function compareInto(options: CompareOptions, { parts, base, takes, finger
         oversample: options.oversample,
         scale: options.scale,
         bits: options.bits,
+        dither: options.dither,
         ...(options.match ? { match: options.match } : {}),
         // Measured in the job, on whichever thread renders it; the THD once per variant.
         measureWritten: true,
@@ -199,7 +201,7 @@ async function compareInto(options: CompareOptions, { parts, base, takes, finger
     const takeName = names[takeIndex];
     const dryFile = `${takeName}--dry.wav`;
     assertNotAnInput(path.join(options.outputDir, dryFile), inputs);
-    const dryMatch = await writeDryTake(wav, path.join(options.outputDir, dryFile), options.match, options.bits);
+    const dryMatch = await writeDryTake(wav, path.join(options.outputDir, dryFile), options.match, options.bits, options.dither);
     const entries: CompareEntry[] = [
       await measured({ kind: 'dry', variant: 0, label: 'dry', overrides: [], file: dryFile, thdPercent: null, ...entryFromMatch(dryMatch) }),
     ];

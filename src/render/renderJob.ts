@@ -39,6 +39,8 @@ export interface RenderJob {
   oversample: OversampleFactor;
   scale: CalibrationScale;
   bits: WavOutputBits;
+  /** TPDF dither for 16-bit output (wavWrite.ts). */
+  dither?: boolean;
   /**
    * Loudness-match the written file (`compare`): gain to the target loudness, held under the
    * sample-peak ceiling. Without it the file keeps the circuit's calibrated level (`render`).
@@ -142,7 +144,7 @@ export async function runRenderJob(job: RenderJob, onProgress?: RenderProgress):
   const summary = renderTakeInPlace(design, wav, { oversample: job.oversample, scale: job.scale, onProgress });
   // `summary.output` stays the circuit's own level; `loudnessMatch` tells the gain the file got.
   const match = job.match ? applyLoudnessMatch(wav.channels, wav.sampleRate, job.match) : undefined;
-  await writeWavFile(wavPath, wav.channels, wav.sampleRate, job.bits);
+  await writeWavFile(wavPath, wav.channels, wav.sampleRate, job.bits, job.dither ?? false);
   // peakVolts and the RMS figures stay the circuit's calibrated level; peakDbfs is the written file's own peak.
   summary.output.peakDbfs = writtenPeakDbfs(wav.channels, job.bits);
   const sidecar = {

@@ -65,6 +65,7 @@ beforeAll(async () => {
     oversample: 2,
     scale: { fullScaleVolts: 1 },
     bits: '16',
+    dither: true,
     threads: 1,
   });
   browser = await chromium.launch({

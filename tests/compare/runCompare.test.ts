@@ -28,6 +28,7 @@ beforeAll(async () => {
     oversample: 2,
     scale: { fullScaleVolts: 1 },
     bits: '24',
+    dither: true,
     threads: 2,
   });
 });
