@@ -44,11 +44,12 @@ function printSummary(summary: CompareSummary, pagePath: string): void {
       entry.kind === 'dry' ? 'dry' : `${entry.variant}. ${entry.label}`,
       formatValue(entry.loudnessBeforeLufs, 1),
       entry.file === null ? 'failed' : formatValue(entry.gainDb, 1),
+      formatValue(entry.loudnessLufs, 1),
       formatValue(entry.peakDbfs, 1),
       formatValue(entry.crestDb, 1),
       formatValue(entry.thdPercent, 2),
       formatValue(entry.centroidHz, 0),
-      entry.ceilingLimited ? 'yes' : '',
+      entry.ceilingLimited ? 'held' : entry.levelledToQuietest ? 'down to quietest' : '',
     ]),
   );
   process.stdout.write(
@@ -58,6 +59,7 @@ function printSummary(summary: CompareSummary, pagePath: string): void {
         { title: 'player' },
         { title: 'LUFS before', align: 'right' },
         { title: 'gain dB', align: 'right' },
+        { title: 'LUFS after', align: 'right' },
         { title: 'peak dBFS', align: 'right' },
         { title: 'crest dB', align: 'right' },
         { title: 'THD %', align: 'right' },

@@ -53,7 +53,14 @@ function keyBadge(entry: CompareEntry): string {
 function metricsTable(take: CompareTake): string {
   const head = ['player', 'overrides', 'loudness before, LUFS', 'gain, dB', 'loudness, LUFS', 'peak, dBFS', 'crest, dB', 'THD at 1 kHz 0.5 V, %', 'centroid, Hz', 'note'];
   const rows = take.entries.map((entry) => {
-    const note = entry.error !== undefined ? `failed: ${entry.error}` : entry.ceilingLimited ? 'held by the peak ceiling: quieter than the target' : '';
+    const note =
+      entry.error !== undefined
+        ? `failed: ${entry.error}`
+        : entry.ceilingLimited
+          ? 'held by the peak ceiling: quieter than the target'
+          : entry.levelledToQuietest
+            ? 'turned down to match the quietest player'
+            : '';
     const cells = [
       formatValue(entry.loudnessBeforeLufs, 1),
       entry.file === null ? '' : formatValue(entry.gainDb, 1),
@@ -153,8 +160,11 @@ ${await spectrumFigure(take, spectra)}
 
 function headerNotes(summary: CompareSummary): string {
   const match = summary.loudnessMatch;
+  const held = summary.takes.filter((take) => take.matchedLufs !== null && match !== null && take.matchedLufs < match.targetLufs - 0.05);
   const matching = match
-    ? `Every player, the dry take too, is loudness-matched to ${match.targetLufs} LUFS (ITU-R BS.1770-4 integrated) with sample peaks held under ${match.ceilingDbfs} dBFS.`
+    ? held.length === 0
+      ? `Every player, the dry take too, is loudness-matched to ${match.targetLufs} LUFS (ITU-R BS.1770-4 integrated) with sample peaks held under ${match.ceilingDbfs} dBFS.`
+      : `Every player of a take, the dry take too, is loudness-matched (ITU-R BS.1770-4 integrated) with sample peaks held under ${match.ceilingDbfs} dBFS: to ${match.targetLufs} LUFS where the ceiling allowed it; ${held.map((take) => `${take.name} to ${take.matchedLufs?.toFixed(1)} LUFS`).join(', ')}, its quietest player's level.`
     : 'Not loudness-matched (--no-match): each render keeps the circuit\'s own level, and louder tends to sound better.';
   const notes = [...summary.ceilingLimited, ...summary.failures];
   const list = notes.length ? `<ul class="notes">${notes.map((note) => `<li>${escapeHtml(note)}</li>`).join('')}</ul>` : '';

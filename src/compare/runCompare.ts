@@ -24,6 +24,7 @@ import { lockOutputFolder } from '../audio/folderLock.js';
 import { runRenderJobs, type JobOutcome } from '../render/workerPool.js';
 import type { LoudnessMatchReport, LoudnessMatchTarget } from '../render/loudnessMatch.js';
 import { writeDryTake } from './dryTake.js';
+import { levelToQuietest } from './levelToQuietest.js';
 import { measureWrittenTake, type TakeMetrics } from '../analysis/takeMetrics.js';
 import { buildListeningPage } from './listeningPage.js';
 import type { CompareEntry, CompareSummary, CompareTake, CompareVariantInfo } from './summary.js';
@@ -221,7 +222,16 @@ async function compareInto(options: CompareOptions, { parts, base, takes, finger
       }
       step();
     }
-    compareTakes.push({ take: options.inputPaths[takeIndex], name: takeName, sampleRate: wav.sampleRate, channels: wav.channels.length, seconds: wav.frames / wav.sampleRate, entries });
+    let matchedLufs: number | null = null;
+    if (options.match) {
+      const levelled = await levelToQuietest(entries, options.outputDir, options.bits, options.dither);
+      for (const [file, metrics] of levelled.remeasured) spectra.set(file, metrics.spectrum);
+      matchedLufs = levelled.sharedLufs ?? options.match.targetLufs;
+      if (levelled.sharedLufs !== null) {
+        ceilingLimited.push(`${takeName}: every player matched to ${levelled.sharedLufs.toFixed(1)} LUFS, the quietest the ${options.match.ceilingDbfs} dBFS ceiling allowed, so the blind test stays fair`);
+      }
+    }
+    compareTakes.push({ take: options.inputPaths[takeIndex], name: takeName, sampleRate: wav.sampleRate, channels: wav.channels.length, seconds: wav.frames / wav.sampleRate, entries, matchedLufs });
   }
 
   const { freqHz, levelVolts, sampleRate } = DEFAULT_MEASURE_OPTIONS;

@@ -22,6 +22,8 @@ export interface CompareEntry {
   gainDb: number;
   /** The -1 dBFS ceiling kept this file quieter than the target. */
   ceilingLimited: boolean;
+  /** Turned down to the take's quietest player, because the ceiling held another player below the target. */
+  levelledToQuietest?: boolean;
   /** Loudness of the written file, LUFS. */
   loudnessLufs: number | null;
   /** Sample peak of the written file, dBFS. */
@@ -46,6 +48,11 @@ export interface CompareTake {
   seconds: number;
   /** Dry take first, then the variants in order. */
   entries: CompareEntry[];
+  /**
+   * The loudness every sounding player of this take was matched to, LUFS: the target, or the quietest
+   * player's loudness when the peak ceiling held one below it; null without matching.
+   */
+  matchedLufs: number | null;
 }
 
 export interface CompareVariantInfo {

@@ -27,6 +27,13 @@ describe('clipbench compare', () => {
     expect(summary.loudnessMatch).toEqual({ targetLufs: -18, ceilingDbfs: -1 });
     expect(summary.takes[0].entries).toHaveLength(3);
     expect(existsSync(path.join(out, 'take--v02-clip.diode_1n34a.wav'))).toBe(true);
+    // The ceiling held the dry take below the target: every player is matched to that quieter level
+    // instead, within a tenth of a loudness unit (ITU-R BS.1770-4 integrated loudness of each file).
+    const first = summary.takes[0];
+    expect(first.matchedLufs).toBeLessThan(-18);
+    for (const entry of first.entries) expect(Math.abs(entry.loudnessLufs - first.matchedLufs)).toBeLessThanOrEqual(0.1);
+    expect(result.stdout).toMatch(/LUFS after/);
+    expect(result.stderr).toMatch(/every player matched to -\d+\.\d LUFS, the quietest/);
   });
 
   it('refuses a --variants file inside -o that an output would overwrite, and leaves it as it was', () => {
