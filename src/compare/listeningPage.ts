@@ -105,6 +105,10 @@ function playerOptions(players: readonly CompareEntry[], selected: CompareEntry 
 
 async function takeSection(take: CompareTake, index: number, spectra: ReadonlyMap<string, readonly SpectrumPoint[]>): Promise<string> {
   const players = take.entries.filter((entry) => entry.file !== null);
+  // The blind test starts on two variants (the question is usually "which value?"), the dry take
+  // only when fewer than two variants rendered.
+  const variants = players.filter((entry) => entry.kind === 'variant');
+  const [abxFirst, abxSecond] = variants.length >= 2 ? variants : [players[0], players[1] ?? players[0]];
   const audios = players
     .map((entry) => `<audio preload="auto" loop data-key="${entry.variant}" data-label="${escapeHtml(playerName(entry))}" src="${escapeHtml(encodeURIComponent(entry.file ?? ''))}"></audio>`)
     .join('\n');
@@ -131,8 +135,8 @@ ${choices}
 <h3>Blind test (ABX)</h3>
 <div data-role="blind-setup">
 <p>Choose two players. The page hides which one is A and which is B; each trial X is A or B at random. Listen to A, B and X as often as you like, then say which one X is.</p>
-<label>Pair: <select data-role="pick-1">${playerOptions(players, players[0])}</select></label>
-<label> and <select data-role="pick-2">${playerOptions(players, players[1] ?? players[0])}</select></label>
+<label>Pair: <select data-role="pick-1">${playerOptions(players, abxFirst)}</select></label>
+<label> and <select data-role="pick-2">${playerOptions(players, abxSecond)}</select></label>
 <label> trials <input type="number" data-role="trials" min="1" max="100" value="10"></label>
 <button type="button" data-action="blind-start">Start blind test</button>
 <span data-role="blind-message" class="failed"></span>

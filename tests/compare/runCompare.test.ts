@@ -96,4 +96,11 @@ describe('runCompare', () => {
     expect(summary.takes[0].entries[0].thdPercent).toBeNull();
     expect(existsSync(result.pagePath)).toBe(true);
   });
+
+  it('presets the blind test to two variants, not the dry take against variant 1', () => {
+    const page = readFileSync(result.pagePath, 'utf8');
+    // Variant 2 failed (unknown diode): the rendered variants are 1 and 3.
+    expect(page).toMatch(/data-role="pick-1"><option value="0">[^<]*<\/option><option value="1" selected>/);
+    expect(page).toMatch(/data-role="pick-2">(<option value="\d+">[^<]*<\/option>)*<option value="3" selected>/);
+  });
 });
