@@ -45,8 +45,13 @@ export function measureSteadyTone(
   };
 }
 
+/** THD in percent of a design for the reference tone's frequency at `levelVolts` peak; null for a silent output. */
+export function thdAtLevelPercent(design: Design<number>, oversample: OversampleFactor, levelVolts: number): number | null {
+  const chain = buildChain(design, { sampleRate: REFERENCE_TONE.sampleRate, oversample });
+  return measureSteadyTone(chain, design, { ...REFERENCE_TONE, levelVolts }).analysis.thdPercent;
+}
+
 /** THD in percent of a design at the reference tone; null for a silent output. */
 export function referenceThdPercent(design: Design<number>, oversample: OversampleFactor): number | null {
-  const chain = buildChain(design, { sampleRate: REFERENCE_TONE.sampleRate, oversample });
-  return measureSteadyTone(chain, design, REFERENCE_TONE).analysis.thdPercent;
+  return thdAtLevelPercent(design, oversample, REFERENCE_TONE.levelVolts);
 }

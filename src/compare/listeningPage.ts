@@ -51,7 +51,7 @@ function keyBadge(entry: CompareEntry): string {
 }
 
 function metricsTable(take: CompareTake): string {
-  const head = ['player', 'overrides', 'loudness before, LUFS', 'gain, dB', 'loudness, LUFS', 'peak, dBFS', 'crest, dB', 'THD at 1 kHz 0.5 V, %', 'centroid, Hz', 'note'];
+  const head = ['player', 'overrides', 'loudness before, LUFS', 'gain, dB', 'loudness, LUFS', 'peak, dBFS', 'crest, dB', 'THD at 1 kHz 0.5 V, %', 'THD at 1 kHz, take peak, %', 'centroid, Hz', 'note'];
   const rows = take.entries.map((entry) => {
     const note =
       entry.error !== undefined
@@ -68,6 +68,7 @@ function metricsTable(take: CompareTake): string {
       formatValue(entry.peakDbfs, 1),
       formatValue(entry.crestDb, 1),
       formatValue(entry.thdPercent, 2),
+      formatValue(entry.thdAtTakePeakPercent, 2),
       formatValue(entry.centroidHz, 0),
     ];
     return `<tr${entry.error !== undefined ? ' class="failed"' : ''}><td>${escapeHtml(playerName(entry))}</td><td>${escapeHtml(entry.overrides.join(' '))}</td>${cells

@@ -149,6 +149,7 @@ async function compareInto(options: CompareOptions, { parts, base, takes, finger
         commandInputs: inputs,
         inputFingerprint: fingerprints[takeIndex],
         referenceThd: takeIndex === 0,
+        thdAtTakePeak: true,
       });
     }
   });
@@ -204,7 +205,7 @@ async function compareInto(options: CompareOptions, { parts, base, takes, finger
     assertNotAnInput(path.join(options.outputDir, dryFile), inputs);
     const dryMatch = await writeDryTake(wav, path.join(options.outputDir, dryFile), options.match, options.bits, options.dither);
     const entries: CompareEntry[] = [
-      await measured({ kind: 'dry', variant: 0, label: 'dry', overrides: [], file: dryFile, thdPercent: null, ...entryFromMatch(dryMatch) }),
+      await measured({ kind: 'dry', variant: 0, label: 'dry', overrides: [], file: dryFile, thdPercent: null, thdAtTakePeakPercent: null, ...entryFromMatch(dryMatch) }),
     ];
     step();
     for (const c of checked) {
@@ -214,10 +215,10 @@ async function compareInto(options: CompareOptions, { parts, base, takes, finger
       if (outcome === undefined || !outcome.ok) {
         const error = outcome && !outcome.ok ? outcome.message : (c.error ?? 'not rendered');
         if (outcome && !outcome.ok) failures.push(`variant ${c.number} "${c.variant.label}" on ${options.inputPaths[takeIndex]}: ${error}`);
-        entries.push({ ...common, file: null, ...entryFromMatch(null), loudnessLufs: null, peakDbfs: null, crestDb: null, centroidHz: null, error });
+        entries.push({ ...common, file: null, thdAtTakePeakPercent: null, ...entryFromMatch(null), loudnessLufs: null, peakDbfs: null, crestDb: null, centroidHz: null, error });
       } else {
         entries.push(
-          await measured({ ...common, file: path.basename(outcome.result.wavPath), ...entryFromMatch(outcome.result.match) }, outcome.result.metrics),
+          await measured({ ...common, file: path.basename(outcome.result.wavPath), thdAtTakePeakPercent: outcome.result.thdAtTakePeakPercent ?? null, ...entryFromMatch(outcome.result.match) }, outcome.result.metrics),
         );
       }
       step();

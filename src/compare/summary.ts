@@ -32,6 +32,8 @@ export interface CompareEntry {
   crestDb: number | null;
   /** THD at the measure reference tone (1 kHz, 0.5 V peak), percent; null for the dry take. */
   thdPercent: number | null;
+  /** THD of a 1 kHz tone at this take's own input peak (how hard the take drives it), percent; null for the dry take or silence. */
+  thdAtTakePeakPercent: number | null;
   /** Spectral centroid of the written file, Hz. */
   centroidHz: number | null;
   /** Present when this render failed: why. */

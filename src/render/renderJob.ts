@@ -20,7 +20,7 @@ import { voltsToDbfs } from './levels.js';
 import { peakOf } from '../audio/calibration.js';
 import { applyLoudnessMatch, type LoudnessMatchReport, type LoudnessMatchTarget } from './loudnessMatch.js';
 import { measureWrittenTake, type TakeMetrics } from '../analysis/takeMetrics.js';
-import { referenceThdPercent } from '../analysis/referenceTone.js';
+import { referenceThdPercent, thdAtLevelPercent } from '../analysis/referenceTone.js';
 
 export interface RenderJob {
   designPath: string;
@@ -50,6 +50,8 @@ export interface RenderJob {
   measureWritten?: boolean;
   /** Also measure the design's THD on the reference tone (`compare`, once per variant). */
   referenceThd?: boolean;
+  /** Also measure the design's THD on a 1 kHz tone at the take's own input peak (`compare`). */
+  thdAtTakePeak?: boolean;
 }
 
 export interface RenderJobResult {
@@ -62,6 +64,8 @@ export interface RenderJobResult {
   metrics?: TakeMetrics;
   /** Present when the job asked for `referenceThd`. */
   referenceThdPercent?: number | null;
+  /** Present when the job asked for `thdAtTakePeak`. */
+  thdAtTakePeakPercent?: number | null;
 }
 
 /** Keep letters and digits of any script, dot, dash and underscore; never a path separator or "..". */
@@ -166,6 +170,7 @@ export async function runRenderJob(job: RenderJob, onProgress?: RenderProgress):
     throw error;
   }
   const thdPercent = job.referenceThd ? referenceThdPercent(design, job.oversample) : undefined;
+  const atPeak = job.thdAtTakePeak && summary.input.peakVolts > 0 ? thdAtLevelPercent(design, job.oversample, summary.input.peakVolts) : null;
   return {
     wavPath,
     sidecarPath,
@@ -173,5 +178,6 @@ export async function runRenderJob(job: RenderJob, onProgress?: RenderProgress):
     ...(match ? { match } : {}),
     ...(metrics ? { metrics } : {}),
     ...(thdPercent !== undefined ? { referenceThdPercent: thdPercent } : {}),
+    ...(job.thdAtTakePeak ? { thdAtTakePeakPercent: atPeak } : {}),
   };
 }

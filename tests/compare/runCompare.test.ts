@@ -97,6 +97,19 @@ describe('runCompare', () => {
     expect(existsSync(result.pagePath)).toBe(true);
   });
 
+  it("adds the THD at each take's own input peak: null for the dry take, ordered against the 0.5 V figure by level", () => {
+    const take = result.summary.takes[0];
+    expect(take.entries[0].thdAtTakePeakPercent).toBeNull();
+    const variant = take.entries.find((entry) => entry.variant === 1)!;
+    const sidecar = JSON.parse(readFileSync(path.join(out, variant.file!.replace(/\.wav$/, '.json')), 'utf8'));
+    const inputPeakVolts: number = sidecar.input.peakVolts;
+    expect(variant.thdAtTakePeakPercent!).toBeGreaterThan(0);
+    // A diode clipper distorts more the harder it is driven (common practice): the take's peak
+    // against the fixed 0.5 V reference orders the two THD figures.
+    if (inputPeakVolts > 0.5) expect(variant.thdAtTakePeakPercent!).toBeGreaterThan(variant.thdPercent!);
+    else expect(variant.thdAtTakePeakPercent!).toBeLessThan(variant.thdPercent!);
+  });
+
   it('presets the blind test to two variants, not the dry take against variant 1', () => {
     const page = readFileSync(result.pagePath, 'utf8');
     // Variant 2 failed (unknown diode): the rendered variants are 1 and 3.
