@@ -2,7 +2,7 @@
  * Safe output files: a file appears under its final name only when complete, and an output never
  * replaces one of the inputs.
  */
-import { readdirSync, realpathSync, rmSync, statSync } from 'node:fs';
+import { mkdirSync, readdirSync, realpathSync, rmSync, statSync } from 'node:fs';
 import { open, rename, rm, type FileHandle } from 'node:fs/promises';
 import { basename, dirname, join, resolve } from 'node:path';
 import { UserError } from '../errors.js';
@@ -139,6 +139,19 @@ function sameExistingFile(first: string, second: string): boolean {
     return a.dev === b.dev && a.ino === b.ino;
   } catch {
     return false;
+  }
+}
+
+/** Create an output folder (and its parents), with one clear line when a file stands in the way. */
+export function createOutputFolder(folder: string): void {
+  try {
+    mkdirSync(folder, { recursive: true });
+  } catch (error) {
+    const code = (error as NodeJS.ErrnoException).code;
+    if (code === 'EEXIST') throw new UserError(`${folder}: is not a folder (a file has that name); choose an output folder`);
+    if (code === 'ENOTDIR') throw new UserError(`${folder}: a part of this path is a file, not a folder; choose an output folder`);
+    if (code === 'EACCES' || code === 'EPERM' || code === 'EROFS') throw new UserError(`${folder}: cannot create the output folder, permission denied`);
+    throw error;
   }
 }
 

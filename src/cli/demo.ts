@@ -1,10 +1,11 @@
 /** `clipbench demo [-o dir]`: synthesise a DI-like take and render it through the bundled designs. */
 import path from 'node:path';
-import { mkdir, readdir } from 'node:fs/promises';
+import { readdir } from 'node:fs/promises';
 import { fileURLToPath } from 'node:url';
 import type { Command } from 'commander';
 import { synthesizeDemoTake } from '../audio/demoTake.js';
 import { writeWavFile } from '../audio/wavWrite.js';
+import { createOutputFolder } from '../audio/atomicWrite.js';
 import { runRenderJobs } from '../render/workerPool.js';
 import type { RenderJob } from '../render/renderJob.js';
 import { formatRows, formatValue } from '../report/table.js';
@@ -21,7 +22,7 @@ export function registerDemoCommand(program: Command): void {
     .option('--oversample <N>', 'oversampling of the nonlinear stages: 1, 2, 4, 8 or 16', '8')
     .action(async (flags: { output: string; oversample: string }) => {
       const oversample = parseOversample(flags.oversample);
-      await mkdir(flags.output, { recursive: true });
+      createOutputFolder(flags.output);
       const take = synthesizeDemoTake();
       const takePath = path.join(flags.output, 'demo-take.wav');
       // The dry take is written at 1 V full scale, the render default, so it plays back calibrated.

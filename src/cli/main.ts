@@ -14,7 +14,8 @@ program
   .name('clipbench')
   .description('Render dry DI takes through a model of a drive circuit, and measure it.')
   .option('--debug', 'show stack traces for errors')
-  .showHelpAfterError('(run with --help for usage)')
+  // Usage errors are one line like every other error: "clipbench: <problem> (run ... --help)".
+  .configureOutput({ outputError: (text, write) => write(`clipbench: ${text.trim().replace(/^error: /, '')} (run with --help for usage)\n`) })
   .exitOverride();
 
 registerCommands(program);
@@ -30,7 +31,10 @@ for (const [signal, status] of [['SIGINT', 130], ['SIGTERM', 143]] as const) {
 
 function reportFailure(error: unknown): never {
   const debug = process.argv.includes('--debug');
-  if (error instanceof CommanderError) process.exit(error.exitCode);
+  if (error instanceof CommanderError) {
+    // Help and version exit 0; a usage error exits 2, as a bad value does.
+    process.exit(error.exitCode === 0 ? 0 : 2);
+  }
   if (error instanceof UserError) {
     process.stderr.write(`clipbench: ${error.message}\n`);
     if (debug && error.stack) process.stderr.write(`${error.stack}\n`);

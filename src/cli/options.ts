@@ -32,12 +32,27 @@ export function parsePositiveNumber(flag: string, text: string, unit: string): n
   return value;
 }
 
+/**
+ * Calibration voltages outside this range make no sense for an instrument signal and push the
+ * arithmetic towards underflow (silence) or overflow (NaN): 1 uV to 1 kV peak.
+ */
+const CALIBRATION_MIN_VOLTS = 1e-6;
+const CALIBRATION_MAX_VOLTS = 1e3;
+
+function parseCalibrationVolts(flag: string, text: string): number {
+  const volts = parsePositiveNumber(flag, text, 'V');
+  if (volts < CALIBRATION_MIN_VOLTS || volts > CALIBRATION_MAX_VOLTS) {
+    throw new UserError(`${flag}: ${text} V is outside ${CALIBRATION_MIN_VOLTS} to ${CALIBRATION_MAX_VOLTS} volts peak`);
+  }
+  return volts;
+}
+
 export function parseCalibration(fullScale: string | undefined, inputPeak: string | undefined): CalibrationScale {
   if (fullScale !== undefined && inputPeak !== undefined) {
     throw new UserError('--full-scale and --input-peak cannot be used together (choose one calibration)');
   }
-  if (inputPeak !== undefined) return { inputPeakVolts: parsePositiveNumber('--input-peak', inputPeak, 'V') };
-  return { fullScaleVolts: fullScale === undefined ? 1 : parsePositiveNumber('--full-scale', fullScale, 'V') };
+  if (inputPeak !== undefined) return { inputPeakVolts: parseCalibrationVolts('--input-peak', inputPeak) };
+  return { fullScaleVolts: fullScale === undefined ? 1 : parseCalibrationVolts('--full-scale', fullScale) };
 }
 
 export function parseThreads(text: string | undefined): number | undefined {

@@ -1,6 +1,5 @@
 /** `clipbench render <design.json> <input.wav...> -o <dir>` */
-import { mkdir } from 'node:fs/promises';
-import { noteOutputFolder } from '../audio/atomicWrite.js';
+import { createOutputFolder, noteOutputFolder } from '../audio/atomicWrite.js';
 import type { Command } from 'commander';
 import { runRenderJobs } from '../render/workerPool.js';
 import { uniqueTakeNames, type RenderJob } from '../render/renderJob.js';
@@ -36,7 +35,7 @@ export function registerRenderCommand(program: Command): void {
         bits: parseBits(flags.bits),
         dither: flags.dither,
       }));
-      await mkdir(flags.output, { recursive: true });
+      createOutputFolder(flags.output);
       noteOutputFolder(flags.output);
       const bar = createProgressBar('rendering');
       const threads = parseThreads(flags.threads);

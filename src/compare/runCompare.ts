@@ -3,13 +3,12 @@
  * renders and the dry take, measure what was written, and write `summary.json` and the listening
  * page `index.html` into the output folder. A failed variant is recorded and the rest go on.
  */
-import { mkdir } from 'node:fs/promises';
 import path from 'node:path';
 import { UserError } from '../errors.js';
 import { readWavFile, type DecodedWav } from '../audio/wavRead.js';
 import type { CalibrationScale } from '../audio/calibration.js';
 import type { WavOutputBits } from '../audio/wavWrite.js';
-import { assertNotAnInput, noteOutputFolder, writeFileAtomic } from '../audio/atomicWrite.js';
+import { assertNotAnInput, createOutputFolder, noteOutputFolder, writeFileAtomic } from '../audio/atomicWrite.js';
 import { loadPartsLibrary, type PartsLibrary } from '../design/parts.js';
 import { readDesignFile } from '../design/parseDesign.js';
 import { resolveDesign } from '../design/resolve.js';
@@ -100,7 +99,7 @@ export async function runCompare(options: CompareOptions): Promise<CompareResult
   const summaryPath = path.join(options.outputDir, 'summary.json');
   const pagePath = path.join(options.outputDir, 'index.html');
   for (const output of [summaryPath, pagePath]) assertNotAnInput(output, inputs);
-  await mkdir(options.outputDir, { recursive: true });
+  createOutputFolder(options.outputDir);
   noteOutputFolder(options.outputDir);
   const release = lockOutputFolder(options.outputDir);
   try {

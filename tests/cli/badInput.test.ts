@@ -208,6 +208,10 @@ describe.concurrent('bad option values name the flag', () => {
     ['--oversample', '3', /--oversample: "3" is not one of 1, 2, 4, 8, 16/],
     ['--bits', '20', /--bits: "20" is not one of 16, 24, 32f/],
     ['--full-scale', '-1', /--full-scale: "-1" is not a positive number/],
+    // Calibrations that would underflow to silence or overflow to NaN are refused with the range.
+    ['--full-scale', '1e-320', /--full-scale: 1e-320 V is outside 0\.000001 to 1000 volts peak/],
+    ['--full-scale', '1e308', /--full-scale: 1e308 V is outside/],
+    ['--input-peak', '1e308', /--input-peak: 1e308 V is outside/],
   ])('render %s %s', async (flag, value, problem) => {
     const out = freshOut();
     expectOneLineFailure(await runCliAsync(['render', NIGHT_DRIVE, goodTake, '-o', out, flag, value]), out, problem);
@@ -234,6 +238,40 @@ describe.concurrent('bad option values name the flag', () => {
 
   test('parts --kind bogus', async () => {
     expectOneLineFailure(await runCliAsync(['parts', '--kind', 'bogus']), null, /--kind: "bogus" is not one of diode, opamp/);
+  });
+});
+
+// ---- usage errors and output folders that cannot be ------------------------------------------
+describe.concurrent('usage errors and impossible output folders: one clipbench: line, exit 2', () => {
+  test('missing -o', async () => {
+    const result = await runCliAsync(['render', NIGHT_DRIVE, goodTake]);
+    expectOneLineFailure(result, null, /required option '-o, --output <dir>' not specified/);
+    expect(result.status).toBe(2);
+  });
+
+  test('unknown option', async () => {
+    const out = freshOut();
+    const result = await runCliAsync(['render', NIGHT_DRIVE, goodTake, '-o', out, '--bogus']);
+    expectOneLineFailure(result, out, /unknown option '--bogus'/);
+    expect(result.status).toBe(2);
+  });
+
+  test.each([
+    ['an existing file', (): string => {
+      const file = at('not-a-folder');
+      writeFileSync(file, 'x');
+      return file;
+    }, /is not a folder \(a file has that name\)/],
+    ['a path below a file', (): string => {
+      const file = at('plain-file');
+      writeFileSync(file, 'x');
+      return path.join(file, 'renders');
+    }, /a part of this path is a file/],
+    ['/dev/null', (): string => '/dev/null', /\/dev\/null: is not a folder/],
+  ])('-o at %s', async (_what, makeTarget, problem) => {
+    const result = await runCliAsync(['render', NIGHT_DRIVE, goodTake, '-o', makeTarget(), '--oversample', '1']);
+    expectOneLineFailure(result, null, problem);
+    expect(result.status).toBe(2);
   });
 });
 
