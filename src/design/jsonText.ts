@@ -1,17 +1,25 @@
 /**
- * JSON text to a plain value, with syntax errors reported by line and column. `JSON.parse` does the
- * parsing; when it fails, a small scanner (RFC 8259 grammar) finds where, because the engine's own
- * messages do not always carry a position.
+ * JSON text to a plain value, with problems reported by line and column. A small scanner (RFC 8259
+ * grammar) checks the text first: syntax errors (the engine's own messages do not always carry a
+ * position), duplicate keys in one object (RFC 8259 leaves their meaning open; JSON.parse silently
+ * keeps the last) and nesting deeper than any design needs (which would exhaust the parser's stack).
+ * `JSON.parse` then does the parsing.
  */
+
+/** Deepest nesting of objects and arrays accepted; designs use about five levels. */
+export const MAX_JSON_DEPTH = 64;
 import { UserError } from '../errors.js';
 
 interface SyntaxProblem {
   offset: number;
   expected: string;
+  /** 'syntax': not JSON at all; 'structure': valid JSON this program refuses (duplicate key, nesting). */
+  kind: 'syntax' | 'structure';
 }
 
 class JsonScanner {
   private offset = 0;
+  private depth = 0;
   constructor(private readonly text: string) {}
 
   /** Offset and description of the first syntax error, or null when the text is valid JSON. */
@@ -28,8 +36,8 @@ class JsonScanner {
     }
   }
 
-  private fail(expected: string): never {
-    throw new ScanFailure({ offset: this.offset, expected });
+  private fail(expected: string, kind: SyntaxProblem['kind'] = 'syntax'): never {
+    throw new ScanFailure({ offset: this.offset, expected, kind });
   }
 
   private skipSpace(): void {
@@ -38,13 +46,20 @@ class JsonScanner {
 
   private value(): void {
     const c = this.text[this.offset];
-    if (c === '{') this.object();
-    else if (c === '[') this.array();
+    if ((c === '{' || c === '[') && this.depth >= MAX_JSON_DEPTH) this.fail(`nesting no deeper than ${MAX_JSON_DEPTH} levels`, 'structure');
+    if (c === '{') this.nested(() => this.object());
+    else if (c === '[') this.nested(() => this.array());
     else if (c === '"') this.string();
     else if (c === '-' || (c !== undefined && c >= '0' && c <= '9')) this.number();
     else if (!this.literal('true') && !this.literal('false') && !this.literal('null')) {
       this.fail('a value (object, array, string, number, true, false or null)');
     }
+  }
+
+  private nested(scan: () => void): void {
+    this.depth++;
+    scan();
+    this.depth--;
   }
 
   private literal(word: string): boolean {
@@ -60,9 +75,17 @@ class JsonScanner {
       this.offset++;
       return;
     }
+    const keys = new Set<string>();
     for (;;) {
       if (this.text[this.offset] !== '"') this.fail('a double-quoted property name');
+      const keyStart = this.offset;
       this.string();
+      const key = JSON.parse(this.text.slice(keyStart, this.offset)) as string;
+      if (keys.has(key)) {
+        this.offset = keyStart;
+        this.fail(`no duplicate key ("${key}" appears twice in this object; JSON keeps only the last)`, 'structure');
+      }
+      keys.add(key);
       this.skipSpace();
       if (this.text[this.offset] !== ':') this.fail("':' after the property name");
       this.offset++;
@@ -144,16 +167,16 @@ export function lineAndColumn(text: string, offset: number): { line: number; col
   return { line, column };
 }
 
-/** Parse JSON text; a syntax error becomes a `UserError` naming file, line and column. */
+/** Parse JSON text; a syntax error, duplicate key or runaway nesting becomes a `UserError` naming file, line and column. */
 export function parseJsonText(text: string, fileName: string): unknown {
   const body = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text; // tolerate a UTF-8 byte-order mark
-  try {
-    return JSON.parse(body) as unknown;
-  } catch {
-    if (body.trim() === '') throw new UserError(`${fileName}: file is empty (expected a JSON object)`);
-    const problem = new JsonScanner(body).findProblem() ?? { offset: 0, expected: 'valid JSON' };
+  if (body.trim() === '') throw new UserError(`${fileName}: file is empty (expected a JSON object)`);
+  const problem = new JsonScanner(body).findProblem();
+  if (problem !== null) {
     const { line, column } = lineAndColumn(body, problem.offset);
     const found = problem.offset < body.length ? JSON.stringify(body[problem.offset]) : 'end of file';
-    throw new UserError(`${fileName}: JSON syntax error at line ${line}, column ${column}: expected ${problem.expected}, found ${found}`);
+    const what = problem.kind === 'syntax' ? 'JSON syntax error' : 'JSON refused';
+    throw new UserError(`${fileName}: ${what} at line ${line}, column ${column}: expected ${problem.expected}, found ${found}`);
   }
+  return JSON.parse(body) as unknown;
 }

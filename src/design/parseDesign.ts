@@ -51,7 +51,8 @@ function parseStages(value: unknown, ctx: StageParseContext): Stage[] {
 
 /** Knob positions: listed knobs must be used by a pot; used knobs that are not listed sit at 0.5. */
 function parseKnobs(value: unknown, knobUses: ReadonlyMap<string, string>, where: Locator): Record<string, number> {
-  const knobs: Record<string, number> = {};
+  // No prototype: knob names such as "constructor" or "__proto__" are plain keys here.
+  const knobs: Record<string, number> = Object.create(null) as Record<string, number>;
   const used = [...knobUses.keys()];
   if (value !== undefined) {
     for (const [knob, position] of Object.entries(readObject(value, 'knobs', where, 'knob positions'))) {

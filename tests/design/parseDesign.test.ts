@@ -125,6 +125,29 @@ describe('errors name path, value and expectation', () => {
     expect(errorOf(() => parseDesignText('', 'design.json', parts))).toMatch(/design.json: file is empty/);
   });
 
+  test('a duplicate key is refused with its line and column (JSON.parse would keep only the last)', () => {
+    const text = '{\n  "supply": 9,\n  "supply": 18,\n  "stages": []\n}';
+    expect(errorOf(() => parseDesignText(text, 'design.json', parts))).toBe(
+      'design.json: JSON refused at line 3, column 3: expected no duplicate key ("supply" appears twice in this object; JSON keeps only the last), found "\\""',
+    );
+  });
+
+  test('runaway nesting is one line naming the design, not a stack overflow', () => {
+    const text = `{"supply": 9, "deep": ${'['.repeat(100000)}${']'.repeat(100000)}}`;
+    expect(errorOf(() => parseDesignText(text, 'design.json', parts))).toMatch(/^design\.json: JSON refused at line 1, column \d+: expected nesting no deeper than 64 levels/);
+  });
+
+  test('knobs may be named like Object members ("constructor", "__proto__")', () => {
+    const design = baseDesign();
+    const pot = (design.stages as Record<string, Record<string, unknown>>[])[1]!.rf!;
+    pot.knob = 'constructor';
+    design.knobs = { constructor: 0.25 };
+    expect(parse(design).knobs.constructor).toBe(0.25);
+    pot.knob = '__proto__';
+    design.knobs = JSON.parse('{ "__proto__": 0.75 }') as Record<string, number>;
+    expect(Object.getOwnPropertyDescriptor(parse(design).knobs, '__proto__')?.value).toBe(0.75);
+  });
+
   test('bad value', () => {
     expect(errorOf(() => parse(withStage(2, { series: '2.2kk' })))).toBe(
       'design.json: stages[2].series: "2.2kk" is not a resistance (expected ohms, e.g. 4.7k, 4k7 or 4700)',
