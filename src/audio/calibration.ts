@@ -37,6 +37,12 @@ export function rmsOf(channels: ReadonlyArray<Float32Array | Float64Array>): num
   return count === 0 ? 0 : Math.sqrt(sumOfSquares / count);
 }
 
+/**
+ * Float takes may exceed full scale a little (a hot interface, a normalised file); samples a million
+ * times over it are a broken or mislabelled file, and would drive every stage into nonsense.
+ */
+export const MAX_TAKE_PEAK_FULL_SCALE = 1e6;
+
 function requirePositiveVolts(volts: number, what: string): void {
   if (!Number.isFinite(volts) || volts <= 0) throw new UserError(`${what} must be a positive number of volts (got ${volts})`);
 }
@@ -48,6 +54,12 @@ function requirePositiveVolts(volts: number, what: string): void {
  */
 export function calibrate(channels: readonly Float32Array[], scale: CalibrationScale, sourceName?: string): Calibration {
   const digitalPeak = peakOf(channels);
+  if (digitalPeak > MAX_TAKE_PEAK_FULL_SCALE) {
+    const where = sourceName === undefined ? '' : `${sourceName}: `;
+    throw new UserError(
+      `${where}samples reach ${digitalPeak.toExponential(2)} x full scale (over ${MAX_TAKE_PEAK_FULL_SCALE} x, 120 dB above 0 dBFS): not a recording; check the file's sample format`,
+    );
+  }
   let voltsPerFullScale: number;
   if ('fullScaleVolts' in scale) {
     requirePositiveVolts(scale.fullScaleVolts, 'full-scale voltage');

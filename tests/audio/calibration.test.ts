@@ -53,6 +53,14 @@ describe('calibrate', () => {
     expect(calibrate(silent, { fullScaleVolts: 1 }).inputPeakVolts).toBe(0);
   });
 
+  test('a float take with samples far beyond full scale (1e30) is refused, naming the file', () => {
+    const take = [Float32Array.from([0.1, 1e30, -0.2])];
+    expect(() => calibrate(take, { fullScaleVolts: 1 }, 'hot.wav')).toThrow(UserError);
+    expect(() => calibrate(take, { fullScaleVolts: 1 }, 'hot.wav')).toThrow(/^hot\.wav: samples reach 1\.00e\+30 x full scale/);
+    // A little over full scale (a hot float file) is fine.
+    expect(calibrate([Float32Array.from([0.5, 2, -3])], { fullScaleVolts: 1 }).inputPeakVolts).toBeCloseTo(3, 6);
+  });
+
   test('scales must be positive, finite volts', () => {
     const take = [Float32Array.from([0.1])];
     for (const bad of [0, -1, Number.NaN, Number.POSITIVE_INFINITY]) {
