@@ -20,6 +20,13 @@ program
 
 registerCommands(program);
 
+// A closed pipe (`clipbench parts | head -1`) or a full disk behind stdout ends the run quietly:
+// exit 1, no stack trace.
+process.stdout.on('error', (error: NodeJS.ErrnoException) => {
+  if (error.code === 'EPIPE' || error.code === 'ENOSPC') process.exit(1);
+  throw error;
+});
+
 // An interrupted run leaves no half-written files: ours are removed (render workers share our pid).
 for (const [signal, status] of [['SIGINT', 130], ['SIGTERM', 143]] as const) {
   process.on(signal, () => {

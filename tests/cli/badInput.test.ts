@@ -5,7 +5,8 @@
  * partial or *.tmp files). The messages themselves are tested at the unit level in tests/audio and
  * tests/design; here only what reaches the user through the real CLI (dist/cli/main.js).
  */
-import { copyFileSync, existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { spawnSync } from 'node:child_process';
+import { closeSync, copyFileSync, existsSync, openSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
@@ -272,6 +273,20 @@ describe.concurrent('usage errors and impossible output folders: one clipbench: 
     const result = await runCliAsync(['render', NIGHT_DRIVE, goodTake, '-o', makeTarget(), '--oversample', '1']);
     expectOneLineFailure(result, null, problem);
     expect(result.status).toBe(2);
+  });
+});
+
+describe('stdout that fails', () => {
+  test('a full disk behind stdout (/dev/full) ends quietly with exit status 1', () => {
+    if (!existsSync('/dev/full')) return; // Linux only
+    const full = openSync('/dev/full', 'w');
+    try {
+      const result = spawnSync(process.execPath, [path.join(PROJECT_ROOT, 'dist', 'cli', 'main.js'), 'parts'], { stdio: ['ignore', full, 'pipe'], encoding: 'utf8' });
+      expect(result.status).toBe(1);
+      expect(result.stderr).toBe('');
+    } finally {
+      closeSync(full);
+    }
   });
 });
 
