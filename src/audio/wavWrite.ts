@@ -17,7 +17,7 @@ const HEADER_BYTES = 44;
 /** Frames encoded per write when streaming a file, so a render needs no second copy of itself. */
 const STREAM_CHUNK_FRAMES = 65536;
 
-interface WavShape {
+export interface WavShape {
   channelCount: number;
   frames: number;
   bytesPerSample: number;
@@ -26,18 +26,21 @@ interface WavShape {
   padBytes: number;
 }
 
-function wavShape(channels: Float32Array[] | Float64Array[], sampleRate: number, bits: WavOutputBits): WavShape {
-  validateEncodeArguments(channels, sampleRate, bits);
-  const channelCount = channels.length;
-  const frames = channels[0].length;
+/** The layout of a WAV of this size; a UserError when it would pass the 4 GiB RIFF limit (call it before rendering). */
+export function wavLayout(channelCount: number, frames: number, bits: WavOutputBits): WavShape {
   const bytesPerSample = bits === '16' ? 2 : bits === '24' ? 3 : 4;
   const blockAlign = channelCount * bytesPerSample;
   const dataBytes = frames * blockAlign;
   const padBytes = dataBytes & 1; // RIFF chunks are padded to even length
   if (HEADER_BYTES - 8 + dataBytes + padBytes > 0xffffffff) {
-    throw new UserError(`render too long for a WAV file: ${dataBytes} bytes of audio exceed the 4 GiB RIFF limit; render shorter takes`);
+    throw new UserError(`render too long for a WAV file: ${dataBytes} bytes of ${bits}-bit audio exceed the 4 GiB RIFF limit; render shorter takes or use fewer bits`);
   }
   return { channelCount, frames, bytesPerSample, blockAlign, dataBytes, padBytes };
+}
+
+function wavShape(channels: Float32Array[] | Float64Array[], sampleRate: number, bits: WavOutputBits): WavShape {
+  validateEncodeArguments(channels, sampleRate, bits);
+  return wavLayout(channels.length, channels[0].length, bits);
 }
 
 function writeHeader(bytes: Uint8Array, shape: WavShape, sampleRate: number, bits: WavOutputBits): void {

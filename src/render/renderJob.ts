@@ -7,7 +7,7 @@ import { statSync } from 'node:fs';
 import { rm } from 'node:fs/promises';
 import { UserError } from '../errors.js';
 import { readWavFile } from '../audio/wavRead.js';
-import { writeWavFile, type WavOutputBits } from '../audio/wavWrite.js';
+import { wavLayout, writeWavFile, type WavOutputBits } from '../audio/wavWrite.js';
 import { assertNotAnInput, writeFileAtomic } from '../audio/atomicWrite.js';
 import { loadPartsLibrary } from '../design/parts.js';
 import { readDesignFile } from '../design/parseDesign.js';
@@ -134,6 +134,8 @@ export async function runRenderJob(job: RenderJob, onProgress?: RenderProgress):
   const parts = loadPartsLibrary(job.partsPath);
   const design = resolveDesign(await readDesignFile(job.designPath, parts, job.overrides));
   const wav = await readWavFile(job.inputPath);
+  // Refused before rendering, not after: a render that cannot be written is wasted time.
+  wavLayout(wav.channels.length, wav.frames, job.bits);
   if (job.inputFingerprint && !sameFingerprint(job.inputFingerprint, takeFingerprint(job.inputPath))) {
     throw new UserError(`${job.inputPath}: the take changed while the run was going on; run again once it is final`);
   }
