@@ -12,6 +12,7 @@ declare module 'odex' {
     absoluteTolerance: number | number[];
     relativeTolerance: number | number[];
     maxSteps: number;
+    maxStepSize: number;
     grid(dt: number, out: (x: number, y: number[]) => boolean | void): OutputFunction;
     solve(f: Derivative, x: number, y0: number[], xEnd: number, solOut?: OutputFunction): { y: number[]; outcome: number; nStep: number };
   }
