@@ -5,18 +5,25 @@
  * so the per-sample solves allocate nothing.
  */
 
-/** Pivots smaller than this (relative to the largest entry of the matrix) count as singular. */
+/** Pivots smaller than this (relative to the largest entry of their column) count as singular. */
 export const SINGULAR_PIVOT_RATIO = 1e-14;
 
 /**
  * Factor the n x n row-major matrix `a` in place into L (unit lower, below the diagonal) and U,
- * recording row swaps in `pivots`. Returns false when a pivot is (numerically) zero.
+ * recording row swaps in `pivots`. Returns false when a pivot is (numerically) zero: below
+ * SINGULAR_PIVOT_RATIO times the largest entry of its column in the original matrix, so that a
+ * well-posed but badly scaled matrix (diag(1, 1e15): a conducting junction beside a cut-off one) is
+ * not mistaken for a singular one. `columnScale` (length >= n) is scratch space; per-sample callers
+ * pass their own so nothing is allocated.
  */
-export function factorLu(a: Float64Array, n: number, pivots: Int32Array): boolean {
-  let scale = 0;
-  for (let k = 0; k < n * n; k++) scale = Math.max(scale, Math.abs(a[k]));
-  const tiny = scale * SINGULAR_PIVOT_RATIO;
+export function factorLu(a: Float64Array, n: number, pivots: Int32Array, columnScale: Float64Array = new Float64Array(n)): boolean {
   for (let col = 0; col < n; col++) {
+    let largest = 0;
+    for (let row = 0; row < n; row++) largest = Math.max(largest, Math.abs(a[row * n + col]));
+    columnScale[col] = largest;
+  }
+  for (let col = 0; col < n; col++) {
+    const tiny = columnScale[col] * SINGULAR_PIVOT_RATIO;
     let best = col;
     let bestAbs = Math.abs(a[col * n + col]);
     for (let row = col + 1; row < n; row++) {

@@ -167,3 +167,63 @@ export function evaluateDevice(
     }
   }
 }
+
+/**
+ * Junction voltage limiting (Nagel, "SPICE2: a computer program to simulate semiconductor circuits",
+ * UCB/ERL M520, 1975; the pnjlim rule): above the critical voltage, where the junction conducts
+ * more than about 1 S, a Newton step of more than two exponential scales is shortened to the
+ * logarithm of its length, so an iterate deep in an exponential comes down in a few steps and never
+ * overshoots into overflow. `scale` is the exponential's voltage scale, `critical` that voltage.
+ */
+function limitJunction(vNew: number, vOld: number, scale: number, critical: number): number {
+  if (vNew > critical && Math.abs(vNew - vOld) > 2 * scale) {
+    if (vOld > 0) {
+      const arg = 1 + (vNew - vOld) / scale;
+      return arg > 0 ? vOld + scale * Math.log(arg) : critical;
+    }
+    return scale * Math.log(vNew / scale);
+  }
+  return vNew;
+}
+
+/** Critical voltage of an exponential Is exp(v / scale): where its conductance reaches 1/sqrt(2) S. */
+function criticalVoltage(saturationAmps: number, scale: number): number {
+  return scale * Math.log(scale / (Math.SQRT2 * saturationAmps));
+}
+
+/**
+ * Limit the Newton step of device `kind` (constants at `params[p..]`) from `vOld` to `vNew` on its
+ * ports at `at..`, in place in `vNew`. Exponential ports only: the square law and the op-amp input
+ * stage are tame.
+ */
+export function limitDeviceStep(kind: DeviceKind, params: Float64Array, p: number, vOld: Float64Array, vNew: Float64Array, at: number): void {
+  switch (kind) {
+    case DeviceKind.Junction: {
+      const scale = params[p + 1];
+      vNew[at] = limitJunction(vNew[at], vOld[at], scale, criticalVoltage(params[p], scale));
+      return;
+    }
+    case DeviceKind.Bjt: {
+      const scale = params[p + 1];
+      const sign = params[p + 4];
+      const critical = criticalVoltage(params[p], scale);
+      vNew[at] = sign * limitJunction(sign * vNew[at], sign * vOld[at], scale, critical);
+      vNew[at + 1] = sign * limitJunction(sign * vNew[at + 1], sign * vOld[at + 1], scale, critical);
+      return;
+    }
+    case DeviceKind.RailClamp: {
+      const scaleAmps = params[p];
+      const low = params[p + 1];
+      const high = params[p + 2];
+      const knee = params[p + 3];
+      const critical = criticalVoltage(scaleAmps, knee);
+      // The clamp is two junctions: past the high rail and below the low one.
+      if (vNew[at] > high) vNew[at] = high + limitJunction(vNew[at] - high, vOld[at] - high, knee, critical);
+      else if (vNew[at] < low) vNew[at] = low - limitJunction(low - vNew[at], low - vOld[at], knee, critical);
+      return;
+    }
+    case DeviceKind.Jfet:
+    case DeviceKind.InputStage:
+      return;
+  }
+}

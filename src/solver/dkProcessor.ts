@@ -2,27 +2,40 @@
  * Runs a DK model sample by sample (see dkModel.ts). Each block of coupled ports is solved by damped
  * Newton-Raphson on g(v) = p + F f(v) - v:
  *   - warm start: the predictor v = p + F i with the block's currents of the previous sample;
- *   - each step solves (I - F J) dv = g(v) and is halved (up to MAX_HALVINGS times) until the
- *     residual shrinks (backtracking line search);
- *   - at most MAX_ITERATIONS steps; stops when |g| < TOLERANCE_VOLTS.
- * Fallback: when a block does not converge (cap reached, or no step reduces the residual) the
- * iterate with the smallest residual so far is kept and `fallbackSamples` counts it; device
- * exponentials are limited (devices.ts), so that iterate is finite. The hot loop allocates nothing.
+ *   - each step solves (I - F J) dv = g(v); exponential ports are limited (junction limiting,
+ *     devices.ts); a limited step is taken whole (at most MAX_UPHILL_STEPS times a solve even if
+ *     the residual grows), any other is halved (up to MAX_HALVINGS times) until the residual shrinks;
+ *   - converged when every |g_k| <= TOLERANCE_VOLTS x max(1, |v_k|, |p_k|) (relative to the largest
+ *     term of g, whose rounding no iterate can beat); at most MAX_ITERATIONS steps.
+ * Fallback, in order: (1) homotopy in the input: the block's drive p is moved from the last sample's
+ * solved value to this sample's in HOMOTOPY_STEPS (then HOMOTOPY_STEPS_FINE) steps, each solved by
+ * Newton from the one before; (2) if even that fails and the best iterate's residual is large, the
+ * block keeps the last sample's voltages and currents (a hold), so an unconverged iterate never
+ * reaches the state. `fallbackSamples` counts blocks that needed (1) or (2), `holdSamples` those that
+ * needed (2). The hot loop allocates nothing and creates no closures.
  */
 import type { Processor } from '../circuit/processor.js';
 import { factorLu, solveLu } from './denseLu.js';
-import { evaluateDevice, PORT_COUNT, type DeviceKind } from './devices.js';
+import { evaluateDevice, limitDeviceStep, PORT_COUNT, type DeviceKind } from './devices.js';
 import type { DkModel } from './dkModel.js';
 import type { MnaSystem } from './mna.js';
 
 export const MAX_ITERATIONS = 50;
 export const MAX_HALVINGS = 12;
-export const TOLERANCE_VOLTS = 1e-9;
+export const TOLERANCE_VOLTS = 1e-10;
+/** Junction-limited steps a Newton solve may take although the residual grew. */
+export const MAX_UPHILL_STEPS = 4;
+export const HOMOTOPY_STEPS = 8;
+export const HOMOTOPY_STEPS_FINE = 128;
+/** A best iterate whose scaled residual exceeds this is not used: the block holds instead. */
+const HOLD_RESIDUAL = 1e-4;
 
 export class DkProcessor implements Processor {
   readonly latencySamples = 0;
-  /** Samples where a block's Newton solve stopped unconverged and kept its best iterate. */
+  /** Block solves that needed the homotopy or the hold fallback. */
   fallbackSamples = 0;
+  /** Block solves that ended in the hold fallback. */
+  holdSamples = 0;
 
   private readonly m: DkModel;
   private readonly params: Float64Array;
@@ -45,6 +58,14 @@ export class DkProcessor implements Processor {
   private readonly step: Float64Array;
   private readonly newton: Float64Array;
   private readonly pivots: Int32Array;
+  private readonly columnScale: Float64Array;
+  /** The last sample's solved drive, voltages and currents per port (homotopy start, hold). */
+  private readonly pSolved: Float64Array;
+  private readonly vSolved: Float64Array;
+  private readonly iSolved: Float64Array;
+  private readonly pTarget: Float64Array;
+  /** Set by `residualNorm`: the iterate it measured meets the tolerance. */
+  private converged = false;
 
   constructor(model: DkModel, system: MnaSystem) {
     this.m = model;
@@ -88,12 +109,31 @@ export class DkProcessor implements Processor {
     this.step = new Float64Array(largestBlock);
     this.newton = new Float64Array(largestBlock * largestBlock);
     this.pivots = new Int32Array(largestBlock);
+    this.columnScale = new Float64Array(largestBlock);
+    this.pSolved = new Float64Array(ports);
+    this.vSolved = new Float64Array(ports);
+    this.iSolved = new Float64Array(ports);
+    this.pTarget = new Float64Array(ports);
     this.reset();
   }
 
   reset(): void {
     this.x.set(this.m.restState);
     this.i.set(this.m.restPortAmps);
+    this.iSolved.set(this.m.restPortAmps);
+    // At rest the drive and the port voltages are those of the operating point: p = D x + e0, v = p + F i.
+    const m = this.m;
+    for (let k = 0; k < m.ports; k++) {
+      let sum = m.e0[k];
+      for (let s = 0; s < m.states; s++) sum += m.d[k * m.states + s] * m.restState[s];
+      this.pSolved[k] = sum;
+    }
+    for (let k = 0; k < m.ports; k++) {
+      let sum = this.pSolved[k];
+      for (let c = 0; c < m.ports; c++) sum += m.f[k * m.ports + c] * m.restPortAmps[c];
+      this.vSolved[k] = sum;
+    }
+    this.v.set(this.vSolved);
   }
 
   process(block: Float64Array): void {
@@ -139,18 +179,25 @@ export class DkProcessor implements Processor {
     }
   }
 
-  /** Largest |g(v)| over the block's ports, g = p + F i - v; writes g into `residual`. */
+  /**
+   * Largest |g_k| over the block's ports, g = p + F i - v (the line search's merit); writes g into
+   * `residual` and sets `converged` when every |g_k| <= TOLERANCE_VOLTS x max(1, |v_k|, |p_k|): relative
+   * to the largest term of g, whose rounding no iterate can beat.
+   */
   private residualNorm(lo: number, hi: number, v: Float64Array, current: Float64Array): number {
     const f = this.m.f;
     const ports = this.m.ports;
     let norm = 0;
+    let converged = true;
     for (let r = lo; r < hi; r++) {
       let g = this.p[r] - v[r];
       for (let c = lo; c < hi; c++) g += f[r * ports + c] * current[c];
       this.residual[r - lo] = g;
       const size = Math.abs(g);
       if (!(size <= norm)) norm = size; // NaN propagates as "largest"
+      if (!(size <= TOLERANCE_VOLTS * Math.max(1, Math.abs(v[r]), Math.abs(this.p[r])))) converged = false;
     }
+    this.converged = converged;
     return norm;
   }
 
@@ -160,7 +207,6 @@ export class DkProcessor implements Processor {
     const ports = m.ports;
     const lo = m.blockStart[j];
     const hi = m.blockStart[j + 1];
-    const size = hi - lo;
     const v = this.v;
     const i = this.i;
     // Contributions of the blocks already solved this sample.
@@ -175,9 +221,67 @@ export class DkProcessor implements Processor {
       for (let c = lo; c < hi; c++) sum += f[r * ports + c] * i[c];
       v[r] = sum;
     }
+    if (!this.newtonBlock(j, lo, hi)) {
+      this.fallbackSamples++;
+      if (!this.homotopy(j, lo, hi, HOMOTOPY_STEPS) && !this.homotopy(j, lo, hi, HOMOTOPY_STEPS_FINE)) {
+        this.residualNorm(lo, hi, v, i);
+        if (!this.withinHoldResidual(lo, hi)) {
+          this.holdSamples++;
+          for (let r = lo; r < hi; r++) {
+            v[r] = this.vSolved[r];
+            i[r] = this.iSolved[r];
+          }
+        }
+      }
+    }
+    for (let r = lo; r < hi; r++) {
+      this.pSolved[r] = this.p[r];
+      this.vSolved[r] = v[r];
+      this.iSolved[r] = i[r];
+    }
+  }
+
+  /** The best iterate (its residual in `residual`) is close enough to use: every |g_k| <= HOLD_RESIDUAL x max(1, |v_k|, |p_k|). */
+  private withinHoldResidual(lo: number, hi: number): boolean {
+    for (let r = lo; r < hi; r++) if (!(Math.abs(this.residual[r - lo]) <= HOLD_RESIDUAL * Math.max(1, Math.abs(this.v[r]), Math.abs(this.p[r])))) return false;
+    return true;
+  }
+
+  /**
+   * Homotopy in the input: move the block's drive from the last solved sample's to this sample's in
+   * `steps` equal steps, each solved by Newton from the one before. True when every step converged;
+   * `p` holds this sample's drive afterwards either way.
+   */
+  private homotopy(j: number, lo: number, hi: number, steps: number): boolean {
+    const v = this.v;
+    const i = this.i;
+    for (let r = lo; r < hi; r++) {
+      this.pTarget[r] = this.p[r];
+      v[r] = this.vSolved[r];
+      i[r] = this.iSolved[r];
+    }
+    let converged = true;
+    for (let step = 1; step <= steps && converged; step++) {
+      const t = step / steps;
+      for (let r = lo; r < hi; r++) this.p[r] = this.pSolved[r] + t * (this.pTarget[r] - this.pSolved[r]);
+      converged = this.newtonBlock(j, lo, hi);
+    }
+    for (let r = lo; r < hi; r++) this.p[r] = this.pTarget[r];
+    return converged;
+  }
+
+  /** Damped Newton on block j from the voltages in `v`; true when converged (`v`, `i` hold the best iterate either way). */
+  private newtonBlock(j: number, lo: number, hi: number): boolean {
+    const m = this.m;
+    const f = m.f;
+    const ports = m.ports;
+    const size = hi - lo;
+    const v = this.v;
+    const i = this.i;
     this.evaluateBlock(j, v, i, this.jac);
     let norm = this.residualNorm(lo, hi, v, i);
-    let converged = norm < TOLERANCE_VOLTS;
+    let converged = this.converged;
+    let uphill = 0;
     for (let iteration = 0; iteration < MAX_ITERATIONS && !converged; iteration++) {
       // Newton matrix I - F J over the block (J is block-diagonal by device).
       const a = this.newton;
@@ -195,30 +299,48 @@ export class DkProcessor implements Processor {
           }
         }
       }
-      if (!factorLu(a, size, this.pivots)) break;
+      if (!factorLu(a, size, this.pivots, this.columnScale)) return false;
       const step = this.step;
       for (let r = 0; r < size; r++) step[r] = this.residual[r];
       solveLu(a, size, this.pivots, step);
+      // The limited full step, then shorter ones until the residual shrinks.
+      for (let r = lo; r < hi; r++) this.vTrial[r] = v[r] + step[r - lo];
+      for (let d = this.blockDevice[j]; d < this.blockDevice[j + 1]; d++) {
+        limitDeviceStep(this.kinds[d], this.params, this.paramStart[d], v, this.vTrial, this.devicePort[d]);
+      }
+      let limited = false;
+      for (let r = lo; r < hi; r++) {
+        const limitedStep = this.vTrial[r] - v[r];
+        if (limitedStep !== step[r - lo]) limited = true;
+        step[r - lo] = limitedStep;
+      }
       let scale = 1;
       let accepted = false;
       for (let halving = 0; halving <= MAX_HALVINGS && !accepted; halving++) {
         for (let r = lo; r < hi; r++) this.vTrial[r] = v[r] + scale * step[r - lo];
         this.evaluateBlock(j, this.vTrial, this.iTrial, this.jacTrial);
         const trialNorm = this.residualNorm(lo, hi, this.vTrial, this.iTrial);
-        if (trialNorm < norm) {
+        // A junction-limited step is taken whole, as circuit simulators do: coming down an
+        // exponential, the residual may grow before it falls (at most MAX_UPHILL_STEPS times a solve,
+        // so a limited step cannot cycle).
+        if (trialNorm < norm || this.converged || (limited && halving === 0 && uphill < MAX_UPHILL_STEPS)) {
+          if (!(trialNorm < norm)) uphill++;
           norm = trialNorm;
           accepted = true;
         }
         scale *= 0.5;
       }
-      if (!accepted) break;
+      if (!accepted) {
+        this.residualNorm(lo, hi, v, i); // `residual` back to the kept iterate's
+        return false;
+      }
       for (let r = lo; r < hi; r++) {
         v[r] = this.vTrial[r];
         i[r] = this.iTrial[r];
       }
       for (let q = this.jacStart[this.blockDevice[j]]; q < this.blockJacEnd[j]; q++) this.jac[q] = this.jacTrial[q];
-      converged = norm < TOLERANCE_VOLTS;
+      converged = this.converged;
     }
-    if (!converged) this.fallbackSamples++;
+    return converged;
   }
 }
