@@ -3,8 +3,12 @@
  * `shared/design.schema.json` is this object written out; a test keeps the two identical.
  */
 import {
+  BJT_FIELDS,
+  JFET_FIELDS,
   DESIGN_FIELDS,
   DIODE_FIELDS,
+  ELEMENT_FIELDS,
+  ELEMENT_TYPES,
   OPAMP_FIELDS,
   POT_FIELDS,
   STAGE_FIELDS,
@@ -48,14 +52,22 @@ const KIND_SCHEMAS: Readonly<Record<Exclude<FieldKind, 'stageType'>, JsonSchema>
   stages: { type: 'array', minItems: 1, items: { oneOf: STAGE_TYPES.map((type) => ref(`${type}Stage`)) } },
   parts: ref('parts'),
   node: { type: 'string', pattern: '^[A-Za-z0-9_-]+$' },
-  elements: { type: 'array', minItems: 1, items: { type: 'object' } },
+  bjtPolarity: { enum: ['npn', 'pnp'] },
+  jfetPolarity: { enum: ['n', 'p'] },
+  signedVolts: { type: 'number' },
+  ranges: { type: 'object', additionalProperties: { type: 'object', properties: { min: { type: 'number' }, max: { type: 'number' } }, required: ['min', 'max'], additionalProperties: false } },
+  elements: { type: 'array', minItems: 1, items: { oneOf: ELEMENT_TYPES.map((type) => ref(`${type}Element`)) } },
+  elementType: { enum: ELEMENT_TYPES },
+  nodes: { type: 'array', minItems: 2, maxItems: 3, items: { type: 'string', pattern: '^[A-Za-z0-9_-]+$' } },
+  bjt: { anyOf: [{ type: 'string', minLength: 1 }, ref('bjtParams')] },
+  jfet: { anyOf: [{ type: 'string', minLength: 1 }, ref('jfetParams')] },
 };
 
 /** A closed object schema from a field table; `type` fields become a constant. */
-function objectSchema(fields: Readonly<Record<string, FieldSpec>>, stageType?: string): JsonSchema {
+function objectSchema(fields: Readonly<Record<string, FieldSpec>>, typeName?: string): JsonSchema {
   const properties: Record<string, JsonSchema> = {};
   for (const [name, spec] of Object.entries(fields)) {
-    const schema = spec.kind === 'stageType' ? { const: stageType } : KIND_SCHEMAS[spec.kind];
+    const schema = spec.kind === 'stageType' || (spec.kind === 'elementType' && typeName !== undefined) ? { const: typeName } : KIND_SCHEMAS[spec.kind];
     properties[name] = { ...schema, description: spec.description };
   }
   const required = Object.entries(fields).flatMap(([name, spec]) => (spec.required ? [name] : []));
@@ -64,6 +76,7 @@ function objectSchema(fields: Readonly<Record<string, FieldSpec>>, stageType?: s
 
 export function buildDesignSchema(): JsonSchema {
   const stageDefs = Object.fromEntries(STAGE_TYPES.map((type) => [`${type}Stage`, objectSchema(STAGE_FIELDS[type], type)]));
+  const elementDefs = Object.fromEntries(ELEMENT_TYPES.map((type) => [`${type}Element`, objectSchema(ELEMENT_FIELDS[type], type)]));
   return {
     $schema: 'https://json-schema.org/draft/2020-12/schema',
     title: 'clipbench design file',
@@ -76,16 +89,21 @@ export function buildDesignSchema(): JsonSchema {
       pot: objectSchema(POT_FIELDS),
       diodeParams: objectSchema(DIODE_FIELDS),
       opampParams: objectSchema(OPAMP_FIELDS),
+      bjtParams: objectSchema(BJT_FIELDS),
+      jfetParams: objectSchema(JFET_FIELDS),
       parts: {
         type: 'object',
         properties: {
           $comment: { type: 'string' },
           diodes: { type: 'object', additionalProperties: ref('diodeParams') },
           opamps: { type: 'object', additionalProperties: ref('opampParams') },
+          bjts: { type: 'object', additionalProperties: ref('bjtParams') },
+          jfets: { type: 'object', additionalProperties: ref('jfetParams') },
         },
         additionalProperties: false,
       },
       ...stageDefs,
+      ...elementDefs,
     },
   };
 }

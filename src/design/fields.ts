@@ -3,7 +3,7 @@
  * kind and meaning. The parser checks field names against these tables and the JSON Schema in
  * `shared/design.schema.json` is generated from them (see `designSchema.ts`), so the two cannot drift.
  */
-import type { StageType } from './types.js';
+import type { ElementType, StageType } from './types.js';
 
 export type FieldKind =
   | 'id'
@@ -32,6 +32,14 @@ export type FieldKind =
   | 'stages'
   | 'node'
   | 'elements'
+  | 'elementType'
+  | 'nodes'
+  | 'bjt' // part name or inline transistor object
+  | 'jfet' // part name or inline JFET object
+  | 'bjtPolarity'
+  | 'jfetPolarity'
+  | 'signedVolts'
+  | 'ranges'
   | 'parts'
   | 'text';
 
@@ -118,6 +126,53 @@ export const STAGE_FIELDS: Readonly<Record<StageType, FieldTable>> = {
 
 export const STAGE_TYPES = Object.keys(STAGE_FIELDS) as StageType[];
 
+const ELEMENT_HEAD: FieldTable = {
+  id: required('id', 'Unique element name within the stage (letters, digits, - and _), used by --set stageId.elementId.field=value'),
+  type: required('elementType', 'Element type'),
+};
+
+const nodesInOrder = (order: string): FieldSpec => required('nodes', `Nodes, in order: ${order}`);
+
+/** The elements of a `circuit` stage and their fields; node order is part of each type's meaning. */
+export const ELEMENT_FIELDS: Readonly<Record<ElementType, FieldTable>> = {
+  resistor: { ...ELEMENT_HEAD, nodes: nodesInOrder('[a, b]'), value: required('resistance', 'Resistance, ohms') },
+  capacitor: { ...ELEMENT_HEAD, nodes: nodesInOrder('[a, b]'), value: required('capacitance', 'Capacitance, farads') },
+  pot: {
+    ...ELEMENT_HEAD,
+    nodes: nodesInOrder('[lug 1, wiper, lug 3]; a pot wired as a variable resistor repeats a node, [x, y, y]'),
+    value: required('ohms', 'Track resistance lug 1 to lug 3, ohms'),
+    knob: required('knobName', 'Knob that turns this pot (clockwise moves the wiper towards lug 3)'),
+    taper: optional('taper', 'linear or audio (default linear): resistance lug 1 to wiper = taper(position) x value'),
+    reverse: optional('boolean', 'Wired backwards: position p acts as 1 - p (default false)'),
+  },
+  diode: {
+    ...ELEMENT_HEAD,
+    nodes: nodesInOrder('[anode, cathode]'),
+    part: required('diode', 'Diode part name or inline { saturationCurrent, ideality, seriesResistance }'),
+    count: optional('count', 'Equal diodes in series (default 1)'),
+  },
+  opamp: { ...ELEMENT_HEAD, nodes: nodesInOrder('[non-inverting input, inverting input, output]; powered from gnd and vcc'), part: required('opamp', 'Op-amp part name') },
+  npn: { ...ELEMENT_HEAD, nodes: nodesInOrder('[collector, base, emitter]'), part: required('bjt', 'NPN part name or inline transistor') },
+  pnp: { ...ELEMENT_HEAD, nodes: nodesInOrder('[collector, base, emitter]'), part: required('bjt', 'PNP part name or inline transistor') },
+  njfet: { ...ELEMENT_HEAD, nodes: nodesInOrder('[drain, gate, source]'), part: required('jfet', 'N-channel JFET part name or inline JFET') },
+  pjfet: { ...ELEMENT_HEAD, nodes: nodesInOrder('[drain, gate, source]'), part: required('jfet', 'P-channel JFET part name or inline JFET') },
+};
+
+export const ELEMENT_TYPES = Object.keys(ELEMENT_FIELDS) as ElementType[];
+
+/** Pins each element type takes. */
+export const ELEMENT_PIN_COUNT: Readonly<Record<ElementType, number>> = {
+  resistor: 2,
+  capacitor: 2,
+  pot: 3,
+  diode: 2,
+  opamp: 3,
+  npn: 3,
+  pnp: 3,
+  njfet: 3,
+  pjfet: 3,
+};
+
 /** A resistor field given as a potentiometer. */
 export const POT_FIELDS: FieldTable = {
   fixed: optional('ohmsOrZero', 'Fixed resistance in series with the pot, ohms (default 0)'),
@@ -160,10 +215,37 @@ export const OPAMP_FIELDS: FieldTable = {
   source: optional('text', 'Where the numbers come from'),
 };
 
+/** A bipolar transistor (Ebers-Moll transport model), inline in a circuit or in a parts file. */
+export const BJT_FIELDS: FieldTable = {
+  polarity: required('bjtPolarity', 'npn or pnp'),
+  saturationCurrent: required('amperes', 'Transport saturation current Is, amperes'),
+  betaForward: required('dimensionless', 'Forward common-emitter current gain (hFE)'),
+  betaReverse: required('dimensionless', 'Reverse common-emitter current gain'),
+  ideality: optional('dimensionless', 'Emission coefficient n (default 1)'),
+  ranges: optional('ranges', 'Datasheet ranges, e.g. { "betaForward": { "min": 100, "max": 300 } }'),
+  source: optional('text', 'Where the numbers come from'),
+};
+
+/** A junction FET (square law), inline in a circuit or in a parts file. */
+export const JFET_FIELDS: FieldTable = {
+  polarity: required('jfetPolarity', 'n or p (channel)'),
+  idss: required('amperes', 'Drain current at VGS = 0 in saturation, amperes'),
+  pinchOff: required('signedVolts', 'Gate-source cut-off voltage VGS(off), volts: negative for n-channel, positive for p-channel'),
+  lambda: optional('voltsOrZero', 'Channel-length modulation, 1/V (default 0)'),
+  ranges: optional('ranges', 'Datasheet ranges, e.g. { "idss": { "min": 0.2e-3, "max": 1e-3 } }'),
+  source: optional('text', 'Where the numbers come from'),
+};
+
+/** Parameters a BJT's or JFET's `ranges` may bound. */
+export const BJT_RANGE_KEYS = ['saturationCurrent', 'betaForward'] as const;
+export const JFET_RANGE_KEYS = ['idss', 'pinchOff'] as const;
+
 export const PARTS_FILE_FIELDS: FieldTable = {
   $comment: optional('text', 'Free text, ignored'),
   diodes: optional('parts', 'Diodes by part name'),
   opamps: optional('parts', 'Op-amps by part name'),
+  bjts: optional('parts', 'Bipolar transistors by part name'),
+  jfets: optional('parts', 'Junction FETs by part name'),
 };
 
 export const fieldNames = (table: FieldTable): string[] => Object.keys(table);

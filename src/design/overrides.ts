@@ -5,6 +5,8 @@
  *   supply=V, temperature=C, name=text             set the top-level fields
  *   stageId.field=value   e.g. clip.diode=1n34a    sets a stage field
  *   stageId.field.sub=v   e.g. amp.rf.fixed=4k7    sets a field inside a pot object
+ *   stageId.elementId.field=v  e.g. drive.rx.value=2k2, drive.d1.part=1n34a  sets a field of an
+ *                         element of a circuit stage
  */
 import { UserError } from '../errors.js';
 import { childPath } from './locator.js';
@@ -80,6 +82,18 @@ function setStageField(design: RawObject, keys: string[], value: unknown, option
   if (index < 0) throw new UserError(`${option}: no stage "${stageId}" in ${fileName} ${suggestionText(stageId, stageIdsIn(stages))}`);
   let target = stages[index] as RawObject;
   let jsonPath = childPath('stages', index);
+  if (target.type === 'circuit' && fieldKeys.length >= 2) {
+    // stageId.elementId.field: step into the element.
+    const elementId = fieldKeys.shift() as string;
+    const elements = Array.isArray(target.elements) ? (target.elements as unknown[]) : [];
+    const elementIndex = elements.findIndex((element) => isRawObject(element) && element.id === elementId);
+    if (elementIndex < 0) {
+      const ids = elements.flatMap((element: unknown) => (isRawObject(element) && typeof element.id === 'string' ? [element.id] : []));
+      throw new UserError(`${option}: no element "${elementId}" in stage "${stageId}" of ${fileName} ${suggestionText(elementId, ids)}`);
+    }
+    target = elements[elementIndex] as RawObject;
+    jsonPath = childPath(childPath(jsonPath, 'elements'), elementIndex);
+  }
   for (const key of fieldKeys.slice(0, -1)) {
     const inner = target[key];
     if (!isRawObject(inner)) {

@@ -18,11 +18,12 @@ import {
   type RawObject,
 } from './rawReaders.js';
 import { suggestionText } from './suggest.js';
+import { parseCircuitStage } from './parseCircuit.js';
 import type { ClipperStage, DiodeParams, GainStage, Pot, Resistance, Stage, StageType, Taper } from './types.js';
 import { parseValue } from './values.js';
 
 const TAPERS: readonly Taper[] = ['linear', 'audio'];
-const STAGE_ID_PATTERN = /^[A-Za-z_][A-Za-z0-9_-]*$/;
+export const STAGE_ID_PATTERN = /^[A-Za-z_][A-Za-z0-9_-]*$/;
 
 /** What the stage parsers share: where errors point, the parts to look up, and the knobs pots use. */
 export interface StageParseContext {
@@ -35,10 +36,10 @@ export interface StageParseContext {
 /** Reads the fields of one raw stage object, each error naming `stages[i].field`. */
 class StageReader {
   constructor(
-    private readonly raw: RawObject,
+    readonly raw: RawObject,
     readonly path: string,
     readonly id: string,
-    private readonly ctx: StageParseContext,
+    readonly ctx: StageParseContext,
   ) {}
 
   has(key: string): boolean {
@@ -103,13 +104,13 @@ class StageReader {
   }
 }
 
-function readTaper(value: unknown, path: string, where: Locator): Taper {
+export function readTaper(value: unknown, path: string, where: Locator): Taper {
   if (typeof value === 'string' && (TAPERS as readonly string[]).includes(value)) return value as Taper;
   const hint = typeof value === 'string' ? suggestionText(value, TAPERS) : `(expected one of: ${TAPERS.join(', ')})`;
   throw new UserError(`${where.at(path)}: ${showRaw(value)} is not a pot taper ${hint}`);
 }
 
-function useKnob(value: unknown, path: string, ctx: StageParseContext): string {
+export function useKnob(value: unknown, path: string, ctx: StageParseContext): string {
   const knob = readString(value, path, ctx.where, 'a knob name');
   if (!ctx.knobUses.has(knob)) ctx.knobUses.set(knob, path);
   return knob;
@@ -135,7 +136,7 @@ export function readResistance(value: unknown, path: string, ctx: StageParseCont
 }
 
 /** A diode field: a part name, or an inline `{ saturationCurrent, ideality, seriesResistance }`. */
-function readDiode(value: unknown, path: string, inlineName: string, ctx: StageParseContext): DiodeParams {
+export function readDiode(value: unknown, path: string, inlineName: string, ctx: StageParseContext): DiodeParams {
   if (isRawObject(value)) return parseDiodeEntry(value, inlineName, path, ctx.where, `inline in ${ctx.where.fileName}`);
   return lookupDiode(ctx.parts, value, path, ctx.where);
 }
@@ -186,7 +187,7 @@ function parseTypedStage(type: StageType, stage: StageReader): Stage {
   const id = stage.id;
   switch (type) {
     case 'circuit':
-      return stage.fail('uses the circuit stage type, which this build cannot read yet');
+      return parseCircuitStage(stage.raw, stage.path, id, stage.ctx);
     case 'input':
       return { id, type, series: stage.optionalResistance('series', 0, true) as Resistance, coupling: stage.capacitance('coupling'), pulldown: stage.resistance('pulldown') };
     case 'gain':

@@ -18,7 +18,7 @@ describe('npm run bench', () => {
     const folder = await mkdtemp(join(tmpdir(), 'clipbench-bench-test-'));
     try {
       const json = join(folder, 'bench.json');
-      const args = ['--seconds', '2', '--factors', '1,8', '--runs', '2', '--memory-minutes', '0.1', '--parallel-seconds', '0.5', '--json', json];
+      const args = ['--seconds', '2', '--factors', '1,8', '--runs', '2', '--memory-minutes', '0.1', '--parallel-seconds', '0.5', '--circuit-seconds', '0.3', '--json', json];
       const child = spawnSync(process.execPath, [bench, ...args], { encoding: 'utf8' });
       expect(child.stderr).toBe('');
       expect(child.stdout).toMatch(/Targets at 8x: >= 100x real time: (met|NOT met); clipper error <= -60 dB: met; harmonics within 0.05 dB: met/);
@@ -39,6 +39,13 @@ describe('npm run bench', () => {
       expect(report.memory?.decodedMiB).toBeCloseTo((6 * 48000 * 4) / 2 ** 20, 3);
       expect(report.memory!.peakRssMiB).toBeGreaterThan(report.memory!.baselineMiB);
       expect(report.parallel?.jobs).toBe(8);
+      expect(report.circuits.map((c) => c.design)).toEqual(['harbor-lights', 'ember-twin']);
+      for (const c of report.circuits) {
+        expect(c.realTime).toBeGreaterThan(0);
+        // The fidelity goal: the render's response within 0.1 dB of the analog circuit's to 10 kHz, 0.3 dB to 20 kHz.
+        expect(c.responseErrorTo10kDb).toBeLessThanOrEqual(0.1);
+        expect(c.responseErrorTo20kDb).toBeLessThanOrEqual(0.3);
+      }
     } finally {
       await rm(folder, { recursive: true, force: true });
     }
@@ -47,7 +54,7 @@ describe('npm run bench', () => {
   it('prints its options for --help and refuses a bad option in one line, exit status 2', () => {
     const help = spawnSync(process.execPath, [bench, '--help'], { encoding: 'utf8' });
     expect(help.status).toBe(0);
-    for (const flag of ['--seconds', '--factors', '--runs', '--memory-minutes', '--parallel-seconds', '--json']) expect(help.stdout).toContain(flag);
+    for (const flag of ['--seconds', '--factors', '--runs', '--memory-minutes', '--parallel-seconds', '--circuit-seconds', '--json']) expect(help.stdout).toContain(flag);
     for (const [args, named] of [
       [['--runs', '0'], '--runs'],
       [['--factors', '8,3'], '--factors'],
