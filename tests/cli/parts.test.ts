@@ -15,10 +15,23 @@ describe('clipbench parts', () => {
     expect(library.opamps.find((o) => o.name === 'ideal')?.gbwHz).toBeNull();
   });
 
+  it('lists transistors and JFETs whose typical values lie inside their datasheet ranges', () => {
+    const library = JSON.parse(runCli(['parts', '--json', '--kind', 'bjt']).stdout) as { bjts: { name: string; betaForward: number; ranges: { betaForward?: { min: number; max: number } } }[] };
+    expect(library.bjts.map((b) => b.name)).toEqual(expect.arrayContaining(['2n3904', '2n3906', '2n5088', 'ac128']));
+    for (const b of library.bjts) {
+      const range = b.ranges.betaForward!;
+      expect(b.betaForward).toBeGreaterThanOrEqual(range.min);
+      expect(b.betaForward).toBeLessThanOrEqual(range.max);
+    }
+  });
+
   it('filters by kind and rejects an unknown kind', () => {
     const diodesOnly = runCli(['parts', '--kind', 'diode']);
     expect(diodesOnly.stdout).toMatch(/1n4148/);
     expect(diodesOnly.stdout).not.toMatch(/tl072/);
+    const jfets = runCli(['parts', '--kind', 'jfet']);
+    expect(jfets.stdout).toMatch(/j201/);
+    expect(jfets.stdout).not.toMatch(/2n3904|1n4148/);
     const bad = runCli(['parts', '--kind', 'valve']);
     expect(bad.status).not.toBe(0);
     expect(bad.stderr).toMatch(/--kind/);
