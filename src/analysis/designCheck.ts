@@ -245,7 +245,7 @@ function checkGainStage(out: CheckCollector, stage: GainStage, design: Design, i
   if (stage.rg !== null && stage.cg !== null) out.corner(stage.id, 'corner-bass', 'bass corner of the gain (rg, cg)', stage.rg, stage.cg);
   if (stage.cf !== null && stage.rf !== 0) out.corner(stage.id, 'corner-treble', 'treble corner of the gain (rf, cf)', stage.rf, stage.cf);
 
-  // Closed-loop bandwidth of a single-pole op-amp: f = GBW / (1 + Rf/Rg) (BRIEF section 2).
+  // Closed-loop bandwidth of a single-pole op-amp: f = GBW / (1 + Rf/Rg) (single-pole op-amp loop; e.g. Sedra & Smith, Microelectronic Circuits, ch. 2; docs/models.md).
   if (!Number.isFinite(opamp.gbwHz)) {
     out.fact({ code: 'gbw-bandwidth', stage: stage.id, label: 'GBW-limited bandwidth at maximum gain', text: `unlimited (${opamp.name})` });
   } else if (Number.isFinite(gain.max)) {

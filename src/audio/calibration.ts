@@ -1,5 +1,5 @@
 /**
- * The only place where digital full scale meets volts (BRIEF section 1): a take is read either at a
+ * The only place where digital full scale meets volts (docs/models.md, "Signals and units"): a take is read either at a
  * fixed `fullScaleVolts` (volts peak at 0 dBFS) or scaled so its peak is `inputPeakVolts`; a render is
  * written back with the same volts-per-full-scale, so a unity design returns its input.
  */

@@ -1,7 +1,7 @@
 /**
  * A DI-like guitar take of our own: a plucked-string model plays a short phrase through a magnetic
- * pickup model, giving volts as a passive pickup would (about 0.1-1 V peak, common practice, BRIEF
- * section 1). Deterministic: a seeded mulberry32 generator, no Math.random.
+ * pickup model, giving volts as a passive pickup would (about 0.1-1 V peak, common
+ * practice). Deterministic: a seeded mulberry32 generator, no Math.random.
  *
  * Scenario (our own): a slow phrase in D minor at 96 bpm. Single notes D3 F3 A3 C4, a held D4, a
  * strummed D minor chord (D3 A3 D4 F4), a walk down G3 F3 E3, and an A5 power chord (A2 E3 A3) left

@@ -1,6 +1,6 @@
 /**
  * Shunt diode clipper: series resistor R from the input into a node, diode network from the node to
- * the bias point, optional capacitor C across the diodes (BRIEF section 2):
+ * the bias point, optional capacitor C across the diodes (Yeh, Abel, Smith, DAFx 2007; docs/models.md):
  *
  *   C dv/dt = (vin - v) / R - i_d(v)          (with C)
  *   v + R i_d(v) = vin                         (without C: memoryless)

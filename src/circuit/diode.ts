@@ -5,7 +5,7 @@
  *
  * (Shockley diode equation with ohmic resistance; e.g. Sedra & Smith, Microelectronic Circuits,
  * ch. 4, and the SPICE diode model.) A string of m equal diodes carries one current and splits the
- * voltage m ways, so it behaves as one diode with n -> m n and Rs -> m Rs (BRIEF section 2).
+ * voltage m ways, so it behaves as one diode with n -> m n and Rs -> m Rs (docs/models.md, "Elements").
  */
 import { UserError } from '../errors.js';
 import type { DiodeParams } from '../design/types.js';

@@ -1,5 +1,5 @@
 /**
- * Non-inverting op-amp gain stage (BRIEF section 2).
+ * Non-inverting op-amp gain stage (docs/models.md, "Named stage types").
  *
  * Linear loop: ideal gain H(s) = 1 + Zf/Zg with Zf = Rf || 1/(s Cf) and Zg = Rg + 1/(s Cg); the
  * real part's GBW makes it H / (1 + s H / wt) (opamp.ts), a rational function of order <= 3,

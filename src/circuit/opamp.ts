@@ -1,5 +1,5 @@
 /**
- * The real op-amp's limits around an ideal closed loop (BRIEF sections 1 and 2):
+ * The real op-amp's limits around an ideal closed loop (docs/models.md, "Named stage types"):
  * - gain-bandwidth: open-loop A(s) = wt / s (wt = 2 pi GBW; the dominant pole's DC gain is so high
  *   that only the product matters in the audio band), so a non-inverting loop with ideal gain
  *   H(s) = 1 + Zf/Zg becomes A / (1 + A / H) = H / (1 + s H / wt);

@@ -186,38 +186,29 @@ export function stageDigitalTransferFunction(
   }
 }
 
+function complexGains(frequenciesHz: readonly number[], at: (hz: number) => [number, number]): ComplexGain[] {
+  return frequenciesHz.map((hz) => {
+    const [re, im] = at(hz);
+    return { re, im };
+  });
+}
+
 /**
  * The response `measure` predicts for one stage at each frequency: for a circuit stage the analog
  * circuit linearised at rest; for a named stage its discretised H(z) at the rate it runs at
  * (`ctx.sampleRate`).
  */
-export function stagePredictedResponse(
-  stage: Stage<number>,
-  ctx: CircuitContext,
-  knobs: Record<string, number>,
-  frequenciesHz: readonly number[],
-): ComplexGain[] {
+export function stagePredictedResponse(stage: Stage<number>, ctx: CircuitContext, knobs: Record<string, number>, frequenciesHz: readonly number[]): ComplexGain[] {
   if (stage.type === 'circuit') return circuitStageResponse(stage, ctx, knobs, frequenciesHz);
   const tf = stageDigitalTransferFunction(stage, ctx, knobs);
-  return frequenciesHz.map((hz) => {
-    const [re, im] = digitalResponse(tf, hz);
-    return { re, im };
-  });
+  return complexGains(frequenciesHz, (hz) => digitalResponse(tf, hz));
 }
 
 /** The stage's analog small-signal gain at each frequency (circuit: linearised at rest). */
-export function stageAnalogResponse(
-  stage: Stage<number>,
-  ctx: CircuitContext,
-  knobs: Record<string, number>,
-  frequenciesHz: readonly number[],
-): ComplexGain[] {
+export function stageAnalogResponse(stage: Stage<number>, ctx: CircuitContext, knobs: Record<string, number>, frequenciesHz: readonly number[]): ComplexGain[] {
   if (stage.type === 'circuit') return circuitStageResponse(stage, ctx, knobs, frequenciesHz);
   const tf = stageSmallSignal(stage, ctx, knobs);
-  return frequenciesHz.map((hz) => {
-    const [re, im] = analogResponse(tf, hz);
-    return { re, im };
-  });
+  return complexGains(frequenciesHz, (hz) => analogResponse(tf, hz));
 }
 
 /**

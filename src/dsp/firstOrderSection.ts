@@ -11,7 +11,7 @@ const PREWARP_LIMIT = 0.9;
 
 /**
  * Discretise a first-order analog section by the bilinear transform pre-warped at its corner, so the
- * digital corner lands exactly on the analog one (BRIEF section 2). A corner near or above Nyquist
+ * digital corner lands exactly on the analog one (bilinear transform with pre-warping; docs/models.md). A corner near or above Nyquist
  * (e.g. a tone pot at its end stop) is transformed without pre-warp: the section is then flat in
  * the audio band either way, and the plain bilinear transform is stable for any corner.
  */

@@ -1,5 +1,5 @@
 /**
- * Linear-phase oversampling by a cascade of x2 half-band stages (BRIEF section 2, "Oversampling").
+ * Linear-phase oversampling by a cascade of x2 half-band stages (docs/models.md, "Oversampling").
  * Stage j runs between 2^(j-1) and 2^j times the base rate. Each stage only has to keep the audio
  * band [0, passband] clean: the images of that band (upsampling) and whatever would fold onto it
  * (downsampling) lie above 2^(j-1) fs - passband, so the transition band of stage j runs from the
@@ -20,7 +20,7 @@ export type OversampleFactor = 1 | 2 | 4 | 8 | 16;
 /** Audio band kept flat and alias-free, at 44.1 kHz and above; scaled with the rate below that. */
 export const PASSBAND_EDGE_HZ = 20000;
 const PASSBAND_EDGE_FRACTION_MIN_RATE = PASSBAND_EDGE_HZ / 44100;
-/** Stopband attenuation of every stage, measured on its design (BRIEF asks >= 100 dB; 1 dB margin). */
+/** Stopband attenuation of every stage, measured on its design (the requirement is >= 100 dB; 1 dB margin). */
 export const STOPBAND_ATTENUATION_DB = 101;
 
 export interface Oversampler {

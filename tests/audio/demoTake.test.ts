@@ -48,7 +48,7 @@ describe('demo take', () => {
     expect(take.description).toMatch(/plucked-string/);
   });
 
-  test('peak in the range of a passive pickup (0.2-0.6 V; 0.1-1 V peak is common practice, BRIEF section 1)', () => {
+  test('peak in the range of a passive pickup (0.2-0.6 V; 0.1-1 V peak is common practice)', () => {
     const peakVolts = peakOf([take.volts]);
     expect(peakVolts).toBeGreaterThanOrEqual(0.2);
     expect(peakVolts).toBeLessThanOrEqual(0.6);

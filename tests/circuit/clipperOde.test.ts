@@ -13,7 +13,7 @@ const AMPLITUDE_VOLTS = 2;
 const HZ = 1000;
 const TEMPERATURE_C = 25;
 
-// Vt = kT/q with k and q exact in the 2019 SI (BRIEF section 2), written out here on purpose.
+// Vt = kT/q with k and q exact in the 2019 SI (SI brochure, 9th ed., 2019), written out here on purpose.
 const VT = (1.380649e-23 * (TEMPERATURE_C + 273.15)) / 1.602176634e-19;
 
 /** Current of one 1N4148 at voltage v, Shockley with series resistance via Lambert W (exact). */

@@ -8,28 +8,28 @@ import { D1N4148 } from './parts.js';
 
 describe('thermal voltage', () => {
   test('kT/q at 25 C is 25.69 mV', () => {
-    // BRIEF section 2: Vt = kT/q, 25.69 mV at 25 C (k, q exact in the 2019 SI).
+    // Vt = kT/q (SI brochure, 9th ed., 2019), 25.69 mV at 25 C (k, q exact in the 2019 SI).
     expectClose(thermalVoltage(25), 0.02569, { atol: 0.000005 });
   });
 });
 
 describe('forward voltage', () => {
   test('1N4148 at 10 mA is within the datasheet limit VF <= 1.0 V', () => {
-    // 1N4148 datasheet: VF <= 1.0 V at IF = 10 mA (BRIEF section 4).
+    // 1N4148 datasheet: VF <= 1.0 V at IF = 10 mA.
     const vf = forwardVoltage(D1N4148, 1, 10e-3, 25);
     expect(vf).toBeLessThanOrEqual(1.0);
     expect(vf).toBeGreaterThan(0.5);
   });
 
   test('1N4148 model card gives 0.694 V at 10 mA with Vt = 25.85 mV', () => {
-    // BRIEF section 4 table: model Vf 0.694 V at 10 mA, computed with Vt = 25.85 mV.
+    // Manufacturer model card (Is 2.52 nA, n 1.752, Rs 0.568 ohm): model Vf 0.694 V at 10 mA, computed with Vt = 25.85 mV.
     // Vt = 25.85 mV is kT/q at 299.98 K = 26.83 C.
     expectClose(thermalVoltage(26.83), 0.02585, { atol: 0.000005 });
     expectClose(forwardVoltage(D1N4148, 1, 10e-3, 26.83), 0.694, { atol: 0.0005 });
   });
 
   test('1N34A card gives 0.345 V at 5 mA and the 1N5817 card 0.419 V at 1 A', () => {
-    // BRIEF section 4 table (Vt = 25.85 mV): 1N34A 0.345 V at 5 mA, 1N5817 0.419 V at 1 A.
+    // The model cards in shared/parts.json (Vt = 25.85 mV): 1N34A 0.345 V at 5 mA, 1N5817 0.419 V at 1 A.
     const ge = { saturationCurrent: 2.6e-6, ideality: 1.6, seriesResistance: 6.5 };
     const schottky = { saturationCurrent: 31.7e-6, ideality: 1.373, seriesResistance: 0.051 };
     expectClose(forwardVoltage(ge, 1, 5e-3, 26.83), 0.345, { atol: 0.001 });

@@ -44,7 +44,7 @@ describe('linear gain', () => {
   });
 
   test('finite GBW: -3.01 dB at GBW / (1 + Rf/Rg)', () => {
-    // Closed-loop bandwidth of a non-inverting stage with A(s) = wt/s is GBW / (1 + Rf/Rg) (BRIEF section 2).
+    // Closed-loop bandwidth of a non-inverting stage with A(s) = wt/s is GBW / (1 + Rf/Rg) (single-pole loop, textbook op-amp analysis).
     const spec = gainSpec({ opamp: TL072, rf: 100e3, rg: 1e3 });
     const tf = gainStageSmallSignal(spec, CTX);
     const cornerHz = TL072.gbwHz / 101;
@@ -70,7 +70,7 @@ describe('unity buffer', () => {
   });
 
   test('TL072 buffer: null against the input below -40 dB at 20 kHz', () => {
-    // A(s) = wt/s follower: 1 - H = s/(s + wt), |1 - H| ~ f/GBW = -46 dB at 20 kHz (BRIEF section 2).
+    // A(s) = wt/s follower: 1 - H = s/(s + wt), |1 - H| ~ f/GBW = -46 dB at 20 kHz (single-pole loop, textbook op-amp analysis).
     const input = sine(1, 20000, CTX.sampleRate, 96 * 100); // 19.2 samples per period: 5 periods in 96
     const out = run(gainSpec({ rf: 0, rg: null, opamp: TL072 }), input);
     const residual = out.map((v, i) => v - input[i]).subarray(96 * 50);
@@ -80,7 +80,7 @@ describe('unity buffer', () => {
 
 describe('op-amp limits', () => {
   test('the rails bound the output: within supply/2 - headroom of the bias point', () => {
-    // TL072 swing: 1.5 V short of each rail (BRIEF section 4); single 9 V supply biased at 4.5 V.
+    // TL072 swing: 1.5 V short of each rail (TL072 datasheet, +-13.5 V at +-15 V into 10k); single 9 V supply biased at 4.5 V.
     const stage = createGainStage(designGainStage(gainSpec({ opamp: TL072 }), CTX));
     const block = sine(1, 1000, CTX.sampleRate, 3840);
     stage.process(block);
@@ -128,7 +128,7 @@ describe('feedback diodes', () => {
   });
 
   test('clipping in the loop keeps the output above the input (gain stays above unity)', () => {
-    // BRIEF section 2: with diodes across Rf the output stays above unity gain.
+    // Textbook soft clipping: with diodes across Rf the output stays above unity gain.
     const spec = gainSpec({ rf: 500e3, rg: 4.7e3, cg: 47e-9, cf: 100e-12, feedbackDiode: D1N4148, feedbackUp: 1, feedbackDown: 1 });
     const stage = createGainStage(designGainStage(spec, CTX));
     const input = sine(0.5, 1000, CTX.sampleRate, 384 * 20);

@@ -1,10 +1,10 @@
 /**
  * Part parameters for the circuit tests, built inline so the tests do not depend on the parts
- * library file. Diode values: BRIEF section 4 (manufacturer / circulated SPICE model cards).
+ * library file. Diode values: manufacturer / circulated SPICE model cards, as in shared/parts.json.
  */
 import type { DiodeParams, OpampParams } from '../../src/design/types.js';
 
-// 1N4148 manufacturer model card: Is 2.52 nA, n 1.752, Rs 0.568 ohm (BRIEF section 4).
+// 1N4148 manufacturer model card: Is 2.52 nA, n 1.752, Rs 0.568 ohm.
 export const D1N4148: DiodeParams = {
   name: '1n4148',
   saturationCurrent: 2.52e-9,
@@ -14,7 +14,7 @@ export const D1N4148: DiodeParams = {
   source: 'test',
 };
 
-// 1N34A germanium, circulated model card: Is 2.6 uA, n 1.6, Rs 6.5 ohm (BRIEF section 4).
+// 1N34A germanium, circulated model card: Is 2.6 uA, n 1.6, Rs 6.5 ohm.
 export const D1N34A: DiodeParams = {
   name: '1n34a',
   saturationCurrent: 2.6e-6,
@@ -24,7 +24,7 @@ export const D1N34A: DiodeParams = {
   source: 'test',
 };
 
-// Red LED, generic card: Is 93.2 pA, n 3.73, Rs 0.042 ohm (BRIEF section 4).
+// Red LED, generic card: Is 93.2 pA, n 3.73, Rs 0.042 ohm.
 export const RED_LED: DiodeParams = {
   name: 'led-red',
   saturationCurrent: 93.2e-12,

@@ -25,7 +25,7 @@ describe('volume stage', () => {
     for (const position of [0, 0.25, 0.5, 1]) expectClose(appliedGain(base, position), position, { rtol: 1e-12 });
   });
 
-  it('audio taper: full at the end, 10-15 % at mid rotation (common practice, BRIEF section 2)', () => {
+  it('audio taper: full at the end, 10-15 % at mid rotation (common practice)', () => {
     const audio: VolumeStage = { ...base, taper: 'audio' };
     expectClose(appliedGain(audio, 1), 1, { rtol: 1e-12 });
     const mid = appliedGain(audio, 0.5);

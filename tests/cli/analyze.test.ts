@@ -51,7 +51,7 @@ describe('clipbench analyze', () => {
       expect(json, key).toHaveProperty(key);
     }
     expectClose(json.fundamentalHz as number, 440, { atol: 0.01 });
-    // THD = V3 / V1 = 0.025 / 0.5 = 5 % (definition, BRIEF section 3).
+    // THD = V3 / V1 = 0.025 / 0.5 = 5 % (definition, IEC 60268-3).
     expectClose(json.thdPercent as number, 5, { rtol: 0.005 });
 
     const html = await readFile(htmlPath, 'utf8');

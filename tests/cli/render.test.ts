@@ -40,7 +40,7 @@ describe('clipbench render', () => {
     expect(stereo.frames).toBe(22050);
     expect(stereo.channels.length).toBe(2);
     const sidecar = JSON.parse(readFileSync(path.join(out, 'mono--night-drive.json'), 'utf8'));
-    // 0.3 of full scale at the default 1 V full scale (BRIEF section 1 calibration).
+    // 0.3 of full scale at the default 1 V full scale (the documented calibration).
     expect(sidecar.input.peakVolts).toBeCloseTo(0.3, 3);
     expect(sidecar.output.peakVolts).toBeGreaterThan(0);
     expect(sidecar.conducting.clip).toBeGreaterThan(0);

@@ -37,7 +37,7 @@ describe('bundled parts library', () => {
   test('1N4148 model meets the datasheet limit VF <= 1.0 V at 10 mA', () => {
     const vf = forwardVolts(library.diodes.get('1n4148')!, 10e-3);
     expect(vf).toBeLessThanOrEqual(1.0); // datasheet limit
-    expectClose(vf, 0.69, { atol: 0.01 }); // BRIEF section 4: model Vf 0.694 V at 10 mA (Vt 25.85 mV)
+    expectClose(vf, 0.69, { atol: 0.01 }); // manufacturer model card: Vf 0.694 V at 10 mA (Vt 25.85 mV)
   });
 
   test('1N914 model meets VF <= 1.0 V at 10 mA (datasheet)', () => {
@@ -65,7 +65,7 @@ describe('bundled parts library', () => {
     }
   });
 
-  test('LEDs: red < green < blue forward drop at 20 mA (BRIEF section 4: 1.85, 2.29, 3.71 V)', () => {
+  test('LEDs: red < green < blue forward drop at 20 mA (generic LED model cards: 1.85, 2.29, 3.71 V)', () => {
     const drops = ['led-red', 'led-green', 'led-blue'].map((name) => forwardVolts(library.diodes.get(name)!, 20e-3));
     expectClose(drops[0]!, 1.85, { atol: 0.03 });
     expectClose(drops[1]!, 2.29, { atol: 0.03 });

@@ -4,7 +4,7 @@ import { createOversampler, type OversampleFactor } from '../../src/dsp/oversamp
 import { expectClose } from '../helpers/expectClose.js';
 import { fitSine, makeSine } from '../helpers/sineFit.js';
 
-// Requirements from BRIEF section 2 ("Oversampling"): passband flat to 20 kHz within 0.01 dB,
+// Requirements (docs/models.md, "Oversampling"): passband flat to 20 kHz within 0.01 dB,
 // stopband >= 100 dB for everything that would image or alias into 0-20 kHz, latency compensated.
 const FACTORS: OversampleFactor[] = [2, 4, 8, 16];
 const BLOCK = 512;
