@@ -38,8 +38,9 @@ function limitedExp(x: number): number {
   return x < EXP_LIMIT ? Math.exp(x) : EXP_AT_LIMIT * (1 + x - EXP_LIMIT);
 }
 
-function limitedExpSlope(x: number): number {
-  return x < EXP_LIMIT ? Math.exp(x) : EXP_AT_LIMIT;
+/** The slope of `limitedExp` at x, given its value there (one exp() for both). */
+function limitedExpSlope(x: number, value: number): number {
+  return x < EXP_LIMIT ? value : EXP_AT_LIMIT;
 }
 
 /** Square-law drain current and its partials for vds >= 0 (Shichman & Hodges, IEEE JSSC 3(3), 1968). */
@@ -89,8 +90,9 @@ export function evaluateDevice(
       const is = params[p];
       const scale = params[p + 1];
       const x = v[at] / scale;
-      current[at] = is * (limitedExp(x) - 1);
-      jacobian[jacAt] = (is / scale) * limitedExpSlope(x);
+      const e = limitedExp(x);
+      current[at] = is * (e - 1);
+      jacobian[jacAt] = (is / scale) * limitedExpSlope(x, e);
       return;
     }
     case DeviceKind.Bjt: {
@@ -103,10 +105,12 @@ export function evaluateDevice(
       const sign = params[p + 4];
       const xf = (sign * v[at]) / scale;
       const xr = (sign * v[at + 1]) / scale;
-      const forward = is * (limitedExp(xf) - 1);
-      const reverse = is * (limitedExp(xr) - 1);
-      const gf = (is / scale) * limitedExpSlope(xf);
-      const gr = (is / scale) * limitedExpSlope(xr);
+      const ef = limitedExp(xf);
+      const er = limitedExp(xr);
+      const forward = is * (ef - 1);
+      const reverse = is * (er - 1);
+      const gf = (is / scale) * limitedExpSlope(xf, ef);
+      const gr = (is / scale) * limitedExpSlope(xr, er);
       current[at] = sign * (forward * (1 + 1 / betaF) - reverse);
       current[at + 1] = sign * (reverse * (1 + 1 / betaR) - forward);
       jacobian[jacAt] = gf * (1 + 1 / betaF);
@@ -159,10 +163,12 @@ export function evaluateDevice(
       const low = params[p + 1];
       const high = params[p + 2];
       const knee = params[p + 3];
-      const above = limitedExp((v[at] - high) / knee);
-      const below = limitedExp((low - v[at]) / knee);
+      const xa = (v[at] - high) / knee;
+      const xb = (low - v[at]) / knee;
+      const above = limitedExp(xa);
+      const below = limitedExp(xb);
       current[at] = scaleAmps * (above - below);
-      jacobian[jacAt] = (scaleAmps / knee) * (limitedExpSlope((v[at] - high) / knee) + limitedExpSlope((low - v[at]) / knee));
+      jacobian[jacAt] = (scaleAmps / knee) * (limitedExpSlope(xa, above) + limitedExpSlope(xb, below));
       return;
     }
   }
@@ -173,10 +179,12 @@ export function evaluateDevice(
  * UCB/ERL M520, 1975; the pnjlim rule): above the critical voltage, where the junction conducts
  * more than about 1 S, a Newton step of more than two exponential scales is shortened to the
  * logarithm of its length, so an iterate deep in an exponential comes down in a few steps and never
- * overshoots into overflow. `scale` is the exponential's voltage scale, `critical` that voltage.
+ * overshoots into overflow. `scale` is the exponential's voltage scale, `saturationAmps` its Is.
  */
-function limitJunction(vNew: number, vOld: number, scale: number, critical: number): number {
-  if (vNew > critical && Math.abs(vNew - vOld) > 2 * scale) {
+function limitJunction(vNew: number, vOld: number, scale: number, saturationAmps: number): number {
+  if (Math.abs(vNew - vOld) <= 2 * scale) return vNew; // cheap test first: most steps are short
+  const critical = criticalVoltage(saturationAmps, scale);
+  if (vNew > critical) {
     if (vOld > 0) {
       const arg = 1 + (vNew - vOld) / scale;
       return arg > 0 ? vOld + scale * Math.log(arg) : critical;
@@ -199,16 +207,14 @@ function criticalVoltage(saturationAmps: number, scale: number): number {
 export function limitDeviceStep(kind: DeviceKind, params: Float64Array, p: number, vOld: Float64Array, vNew: Float64Array, at: number): void {
   switch (kind) {
     case DeviceKind.Junction: {
-      const scale = params[p + 1];
-      vNew[at] = limitJunction(vNew[at], vOld[at], scale, criticalVoltage(params[p], scale));
+      vNew[at] = limitJunction(vNew[at], vOld[at], params[p + 1], params[p]);
       return;
     }
     case DeviceKind.Bjt: {
       const scale = params[p + 1];
       const sign = params[p + 4];
-      const critical = criticalVoltage(params[p], scale);
-      vNew[at] = sign * limitJunction(sign * vNew[at], sign * vOld[at], scale, critical);
-      vNew[at + 1] = sign * limitJunction(sign * vNew[at + 1], sign * vOld[at + 1], scale, critical);
+      vNew[at] = sign * limitJunction(sign * vNew[at], sign * vOld[at], scale, params[p]);
+      vNew[at + 1] = sign * limitJunction(sign * vNew[at + 1], sign * vOld[at + 1], scale, params[p]);
       return;
     }
     case DeviceKind.RailClamp: {
@@ -216,10 +222,9 @@ export function limitDeviceStep(kind: DeviceKind, params: Float64Array, p: numbe
       const low = params[p + 1];
       const high = params[p + 2];
       const knee = params[p + 3];
-      const critical = criticalVoltage(scaleAmps, knee);
       // The clamp is two junctions: past the high rail and below the low one.
-      if (vNew[at] > high) vNew[at] = high + limitJunction(vNew[at] - high, vOld[at] - high, knee, critical);
-      else if (vNew[at] < low) vNew[at] = low - limitJunction(low - vNew[at], low - vOld[at], knee, critical);
+      if (vNew[at] > high) vNew[at] = high + limitJunction(vNew[at] - high, vOld[at] - high, knee, scaleAmps);
+      else if (vNew[at] < low) vNew[at] = low - limitJunction(low - vNew[at], low - vOld[at], knee, scaleAmps);
       return;
     }
     case DeviceKind.Jfet:
