@@ -69,8 +69,9 @@ function variantStem(takeName: string, number: number, label: string): string {
 
 async function checkVariant(options: CompareOptions, parts: PartsLibrary, variant: Variant, number: number): Promise<CheckedVariant> {
   const overrides = [...options.commonOverrides, ...variant.overrides];
+  const located = [...options.commonOverrides, ...variant.overrides.map((text, k) => (variant.origins ? { text, origin: variant.origins[k] } : text))];
   try {
-    const design = resolveDesign(await readDesignFile(options.designPath, parts, overrides));
+    const design = resolveDesign(await readDesignFile(options.designPath, parts, located));
     return { variant, number, overrides, design };
   } catch (error) {
     if (!(error instanceof UserError)) throw error;

@@ -17,6 +17,8 @@ export interface Variant {
   label: string;
   /** `--set`-style overrides, e.g. `clip.diode=1n34a`. */
   overrides: string[];
+  /** Where each override was written (a variants file entry), for errors; absent for --vary. */
+  origins?: string[];
 }
 
 /** Upper bound on the variants of one comparison (each is rendered for every take). */
@@ -91,8 +93,9 @@ export function parseVariantsText(text: string, fileName: string): Variant[] {
     seen.set(label, path);
     const setPath = childPath(path, 'set');
     const set = readObject(entry.set ?? {}, setPath, where, 'overrides such as { "clip.diode": "1n34a" }');
-    const overrides = Object.entries(set).map(([key, value]) => `${key}=${overrideValueText(value, childPath(setPath, key), where)}`);
-    return { label, overrides };
+    const entries = Object.entries(set);
+    const overrides = entries.map(([key, value]) => `${key}=${overrideValueText(value, childPath(setPath, key), where)}`);
+    return { label, overrides, origins: entries.map(([key]) => where.at(childPath(setPath, key))) };
   });
 }
 

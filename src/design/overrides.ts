@@ -44,10 +44,17 @@ function stageIdsIn(stages: unknown): string[] {
   return stages.flatMap((stage: unknown) => (isRawObject(stage) && typeof stage.id === 'string' ? [stage.id] : []));
 }
 
-function splitOverride(override: string, fileName: string): { key: string; valueText: string; option: string } {
+/**
+ * An override: `key=value` text from `--set`, or with the place it came from (e.g. an entry of a
+ * variants file), which its errors then name instead of `--set key`.
+ */
+export type OverrideInput = string | { text: string; origin: string };
+
+function splitOverride(input: OverrideInput, fileName: string): { key: string; valueText: string; option: string } {
+  const override = typeof input === 'string' ? input : input.text;
   const equals = override.indexOf('=');
   const key = equals < 0 ? override.trim() : override.slice(0, equals).trim();
-  const option = `--set ${key}`;
+  const option = typeof input === 'string' ? `--set ${key}` : input.origin;
   if (equals < 0 || key === '') {
     throw new UserError(`--set ${override}: expected name=value, e.g. drive=0.8 or clip.diode=1n34a (for ${fileName})`);
   }
@@ -110,7 +117,7 @@ function setStageField(design: RawObject, keys: string[], value: unknown, option
 }
 
 /** Apply overrides to a copy of the raw design and remember which JSON path each one set. */
-export function applyOverridesTracked(raw: unknown, overrides: readonly string[], fileName: string): TrackedOverrides {
+export function applyOverridesTracked(raw: unknown, overrides: readonly OverrideInput[], fileName: string): TrackedOverrides {
   const overriddenPaths = new Map<string, string>();
   if (overrides.length === 0) return { raw, overriddenPaths };
   if (!isRawObject(raw)) throw new UserError(`${fileName}: expected a design (a JSON object)`);
@@ -127,6 +134,6 @@ export function applyOverridesTracked(raw: unknown, overrides: readonly string[]
 }
 
 /** Apply `--set`-style overrides to a raw design (a copy is returned; the input is not changed). */
-export function applyOverrides(raw: unknown, overrides: readonly string[], fileName: string): unknown {
+export function applyOverrides(raw: unknown, overrides: readonly OverrideInput[], fileName: string): unknown {
   return applyOverridesTracked(raw, overrides, fileName).raw;
 }

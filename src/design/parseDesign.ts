@@ -8,7 +8,7 @@ import { UserError } from '../errors.js';
 import { DESIGN_FIELDS, fieldNames } from './fields.js';
 import { parseJsonText } from './jsonText.js';
 import { childPath, Locator } from './locator.js';
-import { applyOverridesTracked } from './overrides.js';
+import { applyOverridesTracked, type OverrideInput } from './overrides.js';
 import { addPartsFromObject, copyPartsLibrary, type PartsLibrary } from './parts.js';
 import { parseStage, type StageParseContext } from './parseStages.js';
 import { readNumberInRange, readObject, readString, rejectUnknownFields, requireField, showRaw } from './rawReaders.js';
@@ -87,14 +87,14 @@ export function parseDesignObject(raw: unknown, where: Locator, parts: PartsLibr
 }
 
 /** Design JSON text (from `fileName`) to a typed design, with `--set` overrides applied first. */
-export function parseDesignText(jsonText: string, fileName: string, parts: PartsLibrary, overrides: readonly string[] = []): Design<Resistance> {
+export function parseDesignText(jsonText: string, fileName: string, parts: PartsLibrary, overrides: readonly OverrideInput[] = []): Design<Resistance> {
   const raw = parseJsonText(jsonText, fileName);
   const { raw: overridden, overriddenPaths } = applyOverridesTracked(raw, overrides, fileName);
   return parseDesignObject(overridden, new Locator(fileName, overriddenPaths), parts);
 }
 
 /** Read and parse a design file; `overrides` are `--set` texts such as `drive=0.8` or `clip.diode=1n34a`. */
-export async function readDesignFile(filePath: string, parts: PartsLibrary, overrides: readonly string[] = []): Promise<Design<Resistance>> {
+export async function readDesignFile(filePath: string, parts: PartsLibrary, overrides: readonly OverrideInput[] = []): Promise<Design<Resistance>> {
   let text: string;
   try {
     text = await readFile(filePath, 'utf8');

@@ -36,6 +36,14 @@ describe('clipbench compare', () => {
     expect(result.stderr).toMatch(/every player matched to -\d+\.\d LUFS, the quietest/);
   });
 
+  it('a bad value in a variants file names the file and entry, not --set', () => {
+    const variantsPath = path.join(dir, 'bad-value.json');
+    writeFileSync(variantsPath, JSON.stringify({ variants: [{ label: 'a', set: { drive: 0.2 } }, { label: 'b', set: { 'clip.series': '2.2kk' } }] }));
+    const result = runCli(['compare', NIGHT_DRIVE, take, '--variants', variantsPath, '-o', path.join(dir, 'bad-value-out'), '--oversample', '1']);
+    expect(result.stderr).toContain(`variant 2 "b": ${variantsPath}: variants[1].set.clip.series: "2.2kk" is not a resistance`);
+    expect(result.stderr).not.toMatch(/--set clip\.series/);
+  });
+
   it('refuses a --variants file inside -o that an output would overwrite, and leaves it as it was', () => {
     const out = path.join(dir, 'variants-inside');
     mkdirSync(out);

@@ -41,9 +41,9 @@ describe('parseVariantsText', () => {
       ],
     });
     expect(parseVariantsText(text, 'v.json')).toEqual([
-      { label: 'silicon', overrides: ['clip.diode=1n4148'] },
-      { label: 'germanium, hotter', overrides: ['clip.diode=1n34a', 'drive=0.8'] },
-      { label: 'as designed', overrides: [] },
+      { label: 'silicon', overrides: ['clip.diode=1n4148'], origins: ['v.json: variants[0].set.clip.diode'] },
+      { label: 'germanium, hotter', overrides: ['clip.diode=1n34a', 'drive=0.8'], origins: ['v.json: variants[1].set.clip.diode', 'v.json: variants[1].set.drive'] },
+      { label: 'as designed', overrides: [], origins: [] },
     ]);
   });
 
