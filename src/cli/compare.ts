@@ -107,12 +107,12 @@ export function registerCompareCommand(program: Command): void {
         threads: parseThreads(flags.threads),
         onProgress: (phase, fraction) => {
           const bar = (bars[phase] ??= createProgressBar(phase));
-          if (shown !== bar) shown?.finish();
+          if (shown !== bar) shown?.finish(true);
           shown = bar;
           bar.update(fraction);
         },
       });
-      shown?.finish();
+      shown?.finish(true);
       printSummary(summary, pagePath);
       for (const line of summary.ceilingLimited) process.stderr.write(`clipbench: ceiling: ${line}\n`);
       for (const line of summary.failures) process.stderr.write(`clipbench: failed: ${line}\n`);

@@ -40,7 +40,7 @@ export function registerDemoCommand(program: Command): void {
       }));
       const bar = createProgressBar('rendering demo');
       const outcomes = await runRenderJobs(jobs, { onProgress: (f) => bar.update(f) });
-      bar.finish();
+      bar.finish(outcomes.every((outcome) => outcome.ok));
 
       process.stdout.write(`Demo take: ${take.description}\nDry take written to ${takePath}\n\n`);
       const rows = outcomes.map((outcome, index) => {

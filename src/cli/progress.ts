@@ -1,7 +1,7 @@
 /** A progress bar on stderr: redrawn in place on a terminal, a line per quarter otherwise. */
 export interface ProgressBar {
   update(fraction: number): void;
-  finish(): void;
+  finish(completed?: boolean): void;
 }
 
 const WIDTH = 30;
@@ -27,7 +27,12 @@ export function createProgressBar(label: string): ProgressBar {
         stream.write(`${label}: ${quarter * 25}%\n`);
       }
     },
-    finish(): void {
+    /** End the bar; `completed` work shows 100 % (a run that succeeded never ends at 75 %). */
+    finish(completed = false): void {
+      if (completed) {
+        if (interactive) this.update(1);
+        else stream.write(`${label}: 100%\n`);
+      }
       if (interactive && lastShown >= 0) stream.write('\n');
     },
   };

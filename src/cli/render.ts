@@ -40,7 +40,7 @@ export function registerRenderCommand(program: Command): void {
       const bar = createProgressBar('rendering');
       const threads = parseThreads(flags.threads);
       const outcomes = await runRenderJobs(jobs, { threads, onProgress: (f) => bar.update(f) });
-      bar.finish();
+      bar.finish(outcomes.every((outcome) => outcome.ok));
 
       const rows: string[][] = [];
       const problems: string[] = [];
@@ -67,7 +67,9 @@ export function registerRenderCommand(program: Command): void {
         process.stdout.write(
           formatRows(['output', 'in peak V', 'out peak V', 'out peak dBFS', 'crest dB', 'diodes on', 'overs'], rows),
         );
-        process.stdout.write('Caution: rendered drive can be loud. Start playback at a low volume.\n');
+        // The hearing caution where it applies: a render louder (RMS) than its take.
+        const hotter = outcomes.some((o) => o.ok && o.result.summary.output.rmsDbfs !== null && (o.result.summary.input.rmsDbfs === null || o.result.summary.output.rmsDbfs > o.result.summary.input.rmsDbfs));
+        if (hotter) process.stdout.write('Caution: a render is louder than its take. Start playback at a low volume.\n');
       }
       for (const line of problems) process.stderr.write(`clipbench: ${line}\n`);
       if (outcomes.some((outcome) => !outcome.ok)) process.exitCode = 2;

@@ -99,6 +99,15 @@ describe('clipbench render', () => {
     expect(sidecar.output.peakDbfs).toBeLessThanOrEqual(0);
   });
 
+  it('shows progress up to 100 % and the hearing caution only when a render is louder than its take', () => {
+    const quiet = runCli(['render', design, monoTake, '-o', path.join(dir, 'quiet'), '--oversample', '1', '--set', 'level=0.05']);
+    expect(quiet.status).toBe(0);
+    expect(quiet.stderr).toMatch(/rendering: 100%/);
+    expect(quiet.stdout).not.toMatch(/Caution/);
+    const loud = runCli(['render', design, monoTake, '-o', path.join(dir, 'loud'), '--oversample', '1', '--set', 'level=1']);
+    expect(loud.stdout).toMatch(/Caution: a render is louder than its take/);
+  });
+
   it('gives byte-identical files on repeated runs', () => {
     const a = path.join(dir, 'repeat-a');
     const b = path.join(dir, 'repeat-b');
