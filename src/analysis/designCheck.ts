@@ -333,8 +333,15 @@ function fixedParts(stage: Stage): { field: string; value: number; kind: 'resist
 /** Common practice: resistors are stocked in E24 (1 %), capacitors in E12 or coarser. */
 const STOCK_SERIES: Readonly<Record<'resistor' | 'capacitor', ESeriesName>> = { resistor: 'E24', capacitor: 'E12' };
 
+/** Fixed resistors below this are almost always "1m" written for one megaohm (SI: m is milli). */
+const SUSPICIOUS_OHMS = 1;
+
 function checkStandardValues(out: CheckCollector, stage: Stage): void {
   for (const { field, value, kind } of fixedParts(stage)) {
+    if (kind === 'resistor' && value < SUSPICIOUS_OHMS) {
+      out.warn('resistance-milliohm', stage.id, `${field} is ${formatValue(value)} ohm, less than 1 ohm: "m" means milli; write "M" (e.g. 1M) for megaohms`);
+      continue;
+    }
     const series = STOCK_SERIES[kind];
     const standard = nearestStandardValues(value, series);
     if (standard.onSeries) continue;

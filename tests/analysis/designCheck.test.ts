@@ -144,3 +144,18 @@ describe('warnings', () => {
     expectClose(id + vd / 100e3, 0.5 / 10e3, { rtol: 1e-6 });
   });
 });
+
+describe('values that read like a typo', () => {
+  test('"1m" for a pull-down is one milliohm (SI prefix m = milli): check says so', () => {
+    const design = {
+      supply: 9,
+      stages: [
+        { id: 'in', type: 'input', coupling: '100n', pulldown: '1m' },
+        { id: 'clip', type: 'clipper', series: '2k2', diode: '1n4148' },
+      ],
+    };
+    const result = checkText(design);
+    expect(warningCodes(result)).toContain('in:resistance-milliohm');
+    expect(result.warnings.find((w) => w.code === 'resistance-milliohm')?.message).toMatch(/pulldown is 1m ohm, less than 1 ohm: "m" means milli; write "M"/);
+  });
+});
