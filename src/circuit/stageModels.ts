@@ -7,7 +7,7 @@ import { bilinearTransform, type AnalogTransferFunction, type DigitalTransferFun
 import { analogResponse, digitalResponse } from '../dsp/bilinear.js';
 import type { CircuitContext, CircuitStage, GainStage, Stage } from '../design/types.js';
 import { openCircuitTimeConstantSum, type ComplexGain } from '../solver/smallSignal.js';
-import { analyseCircuitStage, circuitStageResponse, createCircuitStage, designCircuitStage } from './circuitStage.js';
+import { analyseCircuitStage, circuitStageResponse, createCircuitStage, designCircuitStage, type CircuitStageDesign } from './circuitStage.js';
 import type { Processor } from './processor.js';
 import type { ConductionMeter } from './conduction.js';
 import { createInputStage, designInputStage, inputStageSmallSignal } from './inputStage.js';
@@ -41,7 +41,7 @@ export function createStageProcessor(
 ): StageProcessor {
   switch (stage.type) {
     case 'circuit':
-      return createCircuitStage(designCircuitStage(stage, ctx, knobs));
+      return circuitProcessorFactory(designCircuitStage(stage, ctx, knobs))();
     case 'input':
       return createInputStage(designInputStage(stage, ctx));
     case 'tone':
@@ -64,6 +64,13 @@ function gainProcessorFactory(stage: GainStage<number>, design: GainStageDesign)
   return () => {
     const processor = createGainStage(design);
     return withConduction(processor, stage.feedbackDiode !== null ? processor : undefined);
+  };
+}
+
+function circuitProcessorFactory(design: CircuitStageDesign): () => StageProcessor {
+  return () => {
+    const processor = createCircuitStage(design);
+    return withConduction(processor, processor.hasDiodes ? processor : undefined);
   };
 }
 
@@ -117,8 +124,7 @@ export function createStageRun(stages: readonly Stage<number>[], ctx: CircuitCon
     } else if (stage.type === 'clipper') {
       processor = warmedUp(clipperProcessorFactory(designClipper(stage, ctx)), ctx);
     } else if (stage.type === 'circuit') {
-      const design = designCircuitStage(stage, ctx, knobs);
-      processor = warmedUp(() => createCircuitStage(design), ctx);
+      processor = warmedUp(circuitProcessorFactory(designCircuitStage(stage, ctx, knobs)), ctx);
     } else {
       processor = createStageProcessor(stage, ctx, knobs);
     }

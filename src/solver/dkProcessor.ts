@@ -15,8 +15,9 @@
  * needed (2). The hot loop allocates nothing and creates no closures.
  */
 import type { Processor } from '../circuit/processor.js';
+import { CONDUCTION_FRACTION, type ConductionMeter } from '../circuit/conduction.js';
 import { factorLu, solveLu } from './denseLu.js';
-import { evaluateDevice, limitDeviceStep, PORT_COUNT, type DeviceKind } from './devices.js';
+import { DeviceKind, evaluateDevice, limitDeviceStep, PORT_COUNT } from './devices.js';
 import type { DkModel } from './dkModel.js';
 import type { MnaSystem } from './mna.js';
 
@@ -30,8 +31,21 @@ export const HOMOTOPY_STEPS_FINE = 128;
 /** A best iterate whose scaled residual exceeds this is not used: the block holds instead. */
 const HOLD_RESIDUAL = 1e-4;
 
-export class DkProcessor implements Processor {
+/**
+ * A diode string conducts when its incremental conductance exceeds this share of the conductance the
+ * rest of the circuit shows its port (1 / |F_kk|): the same definition as the named stages'
+ * (circuit/conduction.ts).
+ */
+const CONDUCTION_SHARE = CONDUCTION_FRACTION;
+
+export class DkProcessor implements Processor, ConductionMeter {
   readonly latencySamples = 0;
+  /** Samples with any diode string conducting, and samples counted, since the last reset. */
+  conductingSamples = 0;
+  countedSamples = 0;
+  /** Jacobian index and conduction threshold (siemens) of each diode string, in solve order. */
+  private readonly diodeJac: Int32Array;
+  private readonly diodeThreshold: Float64Array;
   /** Block solves that needed the homotopy or the hold fallback. */
   fallbackSamples = 0;
   /** Block solves that ended in the hold fallback. */
@@ -89,6 +103,12 @@ export class DkProcessor implements Processor {
       while (device < order.length && this.devicePort[device] < start) device++;
       this.blockDevice[j] = device;
     });
+    const diodes = this.kinds.flatMap((kind, d) => (kind === DeviceKind.Junction ? [d] : []));
+    this.diodeJac = Int32Array.from(diodes, (d) => this.jacStart[d]);
+    this.diodeThreshold = Float64Array.from(diodes, (d) => {
+      const port = this.devicePort[d];
+      return CONDUCTION_SHARE / Math.abs(model.f[port * model.ports + port]);
+    });
     this.blockJacEnd = Int32Array.from({ length: model.blockStart.length - 1 }, (_, j) => {
       const end = this.blockDevice[j + 1];
       return end < order.length ? this.jacStart[end] : jac;
@@ -117,7 +137,14 @@ export class DkProcessor implements Processor {
     this.reset();
   }
 
+  /** True when this circuit has diode strings to meter. */
+  get hasDiodes(): boolean {
+    return this.diodeJac.length > 0;
+  }
+
   reset(): void {
+    this.conductingSamples = 0;
+    this.countedSamples = 0;
     this.x.set(this.m.restState);
     this.i.set(this.m.restPortAmps);
     this.iSolved.set(this.m.restPortAmps);
@@ -150,6 +177,15 @@ export class DkProcessor implements Processor {
         this.p[k] = sum;
       }
       for (let j = 0; j < blocks; j++) this.solveBlock(j);
+      if (this.diodeJac.length > 0) {
+        this.countedSamples++;
+        for (let k = 0; k < this.diodeJac.length; k++) {
+          if (this.jac[this.diodeJac[k]] > this.diodeThreshold[k]) {
+            this.conductingSamples++;
+            break;
+          }
+        }
+      }
       let y = m.h0 + m.h * u - m.restOutput;
       for (let s = 0; s < states; s++) y += m.g[s] * x[s];
       for (let k = 0; k < ports; k++) y += m.k[k] * this.i[k];

@@ -66,3 +66,21 @@ describe('measure on circuit designs at a 44.1 kHz file rate', () => {
     });
   });
 });
+
+describe('diode conduction in a circuit stage', () => {
+  test('the two-op-amp drive meters its diodes: none conduct on a whisper, some on a hard note', () => {
+    const design = resolveDesign(load('harbor-lights'));
+    const share = (volts: number): number => {
+      const chain = buildChain(design, { sampleRate: 48000, oversample: 2 });
+      const block = new Float64Array(chain.blockSize);
+      for (let n = 0; n < 48; n++) {
+        for (let i = 0; i < block.length; i++) block[i] = volts * Math.sin((2 * Math.PI * 220 * (n * block.length + i)) / 48000);
+        chain.process(block);
+      }
+      const meter = chain.stages[0].processor.conduction!;
+      return meter.conductingSamples / meter.countedSamples;
+    };
+    expect(share(1e-4)).toBe(0);
+    expect(share(0.5)).toBeGreaterThan(0.05);
+  });
+});
