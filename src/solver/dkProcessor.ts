@@ -177,15 +177,11 @@ export class DkProcessor implements Processor, ConductionMeter {
         this.p[k] = sum;
       }
       for (let j = 0; j < blocks; j++) this.solveBlock(j);
-      if (this.diodeJac.length > 0) {
-        this.countedSamples++;
-        for (let k = 0; k < this.diodeJac.length; k++) {
-          if (this.jac[this.diodeJac[k]] > this.diodeThreshold[k]) {
-            this.conductingSamples++;
-            break;
-          }
-        }
-      }
+      // Branch-free, so the kernel's type feedback does not wait for the first conducting sample.
+      let conducting = 0;
+      for (let k = 0; k < this.diodeJac.length; k++) conducting |= +(this.jac[this.diodeJac[k]] > this.diodeThreshold[k]);
+      this.conductingSamples += conducting;
+      this.countedSamples += this.diodeJac.length > 0 ? 1 : 0;
       let y = m.h0 + m.h * u - m.restOutput;
       for (let s = 0; s < states; s++) y += m.g[s] * x[s];
       for (let k = 0; k < ports; k++) y += m.k[k] * this.i[k];
