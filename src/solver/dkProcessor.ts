@@ -1,6 +1,7 @@
 /**
- * Runs a DK model sample by sample (see dkModel.ts). Each block of coupled ports is solved by damped
- * Newton-Raphson on g(v) = p + F f(v) - v:
+ * Runs a DK model sample by sample (see dkModel.ts). The per-sample loop is generated for the model
+ * (dkKernel.ts) and tries a fast undamped Newton first; a block it does not settle comes here, to the
+ * robust solve: damped Newton-Raphson on g(v) = p + F f(v) - v:
  *   - warm start: the predictor v = p + F i with the block's currents of the previous sample;
  *   - each step solves (I - F J) dv = g(v); exponential ports are limited (junction limiting,
  *     devices.ts); a limited step is taken whole (at most MAX_UPHILL_STEPS times a solve even if
@@ -12,12 +13,13 @@
  * Newton from the one before; (2) if even that fails and the best iterate's residual is large, the
  * block keeps the last sample's voltages and currents (a hold), so an unconverged iterate never
  * reaches the state. `fallbackSamples` counts blocks that needed (1) or (2), `holdSamples` those that
- * needed (2). The hot loop allocates nothing and creates no closures.
+ * needed (2). Neither path allocates or creates closures per sample.
  */
 import type { Processor } from '../circuit/processor.js';
 import { CONDUCTION_FRACTION, type ConductionMeter } from '../circuit/conduction.js';
 import { factorLu, solveLu } from './denseLu.js';
 import { DeviceKind, evaluateDevice, limitDeviceStep, PORT_COUNT } from './devices.js';
+import { compileDkKernel, type DkKernel, type KernelHost } from './dkKernel.js';
 import type { DkModel } from './dkModel.js';
 import type { MnaSystem } from './mna.js';
 
@@ -38,7 +40,7 @@ const HOLD_RESIDUAL = 1e-4;
  */
 const CONDUCTION_SHARE = CONDUCTION_FRACTION;
 
-export class DkProcessor implements Processor, ConductionMeter {
+export class DkProcessor implements Processor, ConductionMeter, KernelHost {
   readonly latencySamples = 0;
   /** Samples with any diode string conducting, and samples counted, since the last reset. */
   conductingSamples = 0;
@@ -59,12 +61,16 @@ export class DkProcessor implements Processor, ConductionMeter {
   private readonly jacStart: Int32Array;
   private readonly blockDevice: Int32Array; // first device of each block, plus the end
   private readonly blockJacEnd: Int32Array; // end of each block's Jacobian entries
-  private x: Float64Array;
-  private xNext: Float64Array;
-  private readonly p: Float64Array;
-  private readonly v: Float64Array;
-  private readonly i: Float64Array;
-  private readonly jac: Float64Array;
+  // The generated kernel's state (KernelHost), between blocks: capacitor histories, this sample's
+  // drive, port voltages and currents, device Jacobians, and the last solved sample's values.
+  readonly x: Float64Array;
+  readonly p: Float64Array;
+  readonly v: Float64Array;
+  readonly i: Float64Array;
+  readonly jac: Float64Array;
+  readonly pSolved: Float64Array;
+  readonly vSolved: Float64Array;
+  readonly iSolved: Float64Array;
   private readonly vTrial: Float64Array;
   private readonly iTrial: Float64Array;
   private readonly jacTrial: Float64Array;
@@ -73,11 +79,8 @@ export class DkProcessor implements Processor, ConductionMeter {
   private readonly newton: Float64Array;
   private readonly pivots: Int32Array;
   private readonly columnScale: Float64Array;
-  /** The last sample's solved drive, voltages and currents per port (homotopy start, hold). */
-  private readonly pSolved: Float64Array;
-  private readonly vSolved: Float64Array;
-  private readonly iSolved: Float64Array;
   private readonly pTarget: Float64Array;
+  private readonly kernel: DkKernel;
   /** Set by `residualNorm`: the iterate it measured meets the tolerance. */
   private converged = false;
 
@@ -117,7 +120,6 @@ export class DkProcessor implements Processor, ConductionMeter {
     let largestBlock = 0;
     for (let j = 0; j + 1 < model.blockStart.length; j++) largestBlock = Math.max(largestBlock, model.blockStart[j + 1] - model.blockStart[j]);
     this.x = new Float64Array(model.states);
-    this.xNext = new Float64Array(model.states);
     this.p = new Float64Array(ports);
     this.v = new Float64Array(ports);
     this.i = new Float64Array(ports);
@@ -135,6 +137,21 @@ export class DkProcessor implements Processor, ConductionMeter {
     this.iSolved = new Float64Array(ports);
     this.pTarget = new Float64Array(ports);
     this.reset();
+    this.kernel = compileDkKernel(
+      {
+        model,
+        kinds: this.kinds,
+        portCounts: this.kinds.map((kind) => PORT_COUNT[kind]),
+        deviceParams: order.map((d) => this.params.slice(system.deviceParamStart[d], d + 1 < system.deviceKinds.length ? system.deviceParamStart[d + 1] : this.params.length)),
+        devicePort: this.devicePort,
+        jacStart: this.jacStart,
+        blockDevice: this.blockDevice,
+        diodeJac: this.diodeJac,
+        diodeThreshold: this.diodeThreshold,
+        tolerance: TOLERANCE_VOLTS,
+      },
+      this,
+    );
   }
 
   /** True when this circuit has diode strings to meter. */
@@ -161,47 +178,12 @@ export class DkProcessor implements Processor, ConductionMeter {
       this.vSolved[k] = sum;
     }
     this.v.set(this.vSolved);
+    // The devices' Jacobian at rest: the kernel's first predictor step uses it.
+    for (let j = 0; j + 1 < m.blockStart.length; j++) this.evaluateBlock(j, this.v, this.iTrial, this.jac);
   }
 
   process(block: Float64Array): void {
-    const m = this.m;
-    const states = m.states;
-    const ports = m.ports;
-    const blocks = m.blockStart.length - 1;
-    for (let n = 0; n < block.length; n++) {
-      const u = block[n];
-      const x = this.x;
-      for (let k = 0; k < ports; k++) {
-        let sum = m.e0[k] + m.e[k] * u;
-        for (let s = 0; s < states; s++) sum += m.d[k * states + s] * x[s];
-        this.p[k] = sum;
-      }
-      for (let j = 0; j < blocks; j++) this.solveBlock(j);
-      // Branch-free, so the kernel's type feedback does not wait for the first conducting sample.
-      let conducting = 0;
-      for (let k = 0; k < this.diodeJac.length; k++) conducting |= +(this.jac[this.diodeJac[k]] > this.diodeThreshold[k]);
-      this.conductingSamples += conducting;
-      this.countedSamples += this.diodeJac.length > 0 ? 1 : 0;
-      let y = m.h0 + m.h * u - m.restOutput;
-      for (let s = 0; s < states; s++) y += m.g[s] * x[s];
-      for (let k = 0; k < ports; k++) y += m.k[k] * this.i[k];
-      const next = this.xNext;
-      for (let r = 0; r < states; r++) {
-        let sum = m.b0[r] + m.b[r] * u;
-        for (let s = 0; s < states; s++) sum += m.a[r * states + s] * x[s];
-        for (let k = 0; k < ports; k++) sum += m.c[r * ports + k] * this.i[k];
-        next[r] = sum;
-      }
-      if (y - y !== 0) {
-        // Only reachable from non-finite input: restart at rest rather than pass NaN or Inf on.
-        this.reset();
-        y = 0;
-      } else {
-        this.xNext = x;
-        this.x = next;
-      }
-      block[n] = y;
-    }
+    this.kernel(block);
   }
 
   /** Evaluate the devices of block j at `v`, into `current` and `jacobian`. */
@@ -233,7 +215,12 @@ export class DkProcessor implements Processor, ConductionMeter {
     return norm;
   }
 
-  private solveBlock(j: number): void {
+  /**
+   * The robust solve of block j (KernelHost): `p` holds this sample's drive for the block, including
+   * the blocks solved before it; `pSolved`, `vSolved`, `iSolved` the last sample's solution. Leaves
+   * the block's solution in `v`, `i` and `jac`, and the fallback counts updated.
+   */
+  solveBlockRobustly(j: number): void {
     const m = this.m;
     const f = m.f;
     const ports = m.ports;
@@ -241,14 +228,9 @@ export class DkProcessor implements Processor, ConductionMeter {
     const hi = m.blockStart[j + 1];
     const v = this.v;
     const i = this.i;
-    // Contributions of the blocks already solved this sample.
-    for (let r = lo; r < hi; r++) {
-      let sum = this.p[r];
-      for (let c = 0; c < lo; c++) sum += f[r * ports + c] * i[c];
-      this.p[r] = sum;
-    }
     // Predictor: last sample's currents through this sample's linear part.
     for (let r = lo; r < hi; r++) {
+      i[r] = this.iSolved[r];
       let sum = this.p[r];
       for (let c = lo; c < hi; c++) sum += f[r * ports + c] * i[c];
       v[r] = sum;
