@@ -36,36 +36,42 @@ export const PORT_COUNT: Readonly<Record<DeviceKind, number>> = {
  * (the usual junction-voltage limiting of circuit simulators, in its simplest form), and taken as 0
  * below -EXP_FLOOR: exp(-40) = 4e-18 is below the rounding of any sum it enters (a junction's
  * e - 1, a conductance beside gmin), and skipping it saves the exp() of every reverse-biased
- * junction and of an op-amp's far rail.
+ * junction and of an op-amp's far rail. Emitted as an expression of the local `x` (kernels inline
+ * it: a call returning a double would box its result).
  */
 const EXP_LIMIT = 50;
 const EXP_AT_LIMIT = Math.exp(EXP_LIMIT);
 const EXP_FLOOR = 40;
 
-export function limitedExp(x: number): number {
-  return x < EXP_LIMIT ? (x > -EXP_FLOOR ? Math.exp(x) : 0) : EXP_AT_LIMIT * (1 + x - EXP_LIMIT);
+function emitLimitedExp(x: string): string {
+  return `(${x} < ${EXP_LIMIT} ? (${x} > ${-EXP_FLOOR} ? Math.exp(${x}) : 0) : ${EXP_AT_LIMIT} * (1 + ${x} - ${EXP_LIMIT}))`;
 }
 
-/** The slope of `limitedExp` at x, given its value there (one exp() for both). */
-export function limitedExpSlope(x: number, value: number): number {
-  return x < EXP_LIMIT ? value : EXP_AT_LIMIT;
+/** The slope of the limited exponential at the local `x`, given its value `value` there (one exp() for both). */
+function emitLimitedExpSlope(x: string, value: string): string {
+  return `(${x} < ${EXP_LIMIT} ? ${value} : ${EXP_AT_LIMIT})`;
 }
 
-/** Below this |z|, `tanhSeries` sums the Taylor series instead of calling Math.tanh. */
+/** Below this |z|, tanh is summed as its Taylor series instead of calling Math.tanh. */
 const TANH_SERIES_LIMIT = 0.02;
 
 /**
- * tanh(z). Where |z| < TANH_SERIES_LIMIT (an op-amp input stage in its linear range, i.e. nearly
- * always) by its Taylor series to the z^9 term (Abramowitz & Stegun, Handbook of Mathematical
- * Functions, 4.5.64): the first term left out, 1382 z^11 / 155925, is below 1e-19 of the sum there,
- * so the result is Math.tanh's to rounding, several times cheaper.
+ * Statements setting `target` to tanh(z) of the local `z`. Where |z| < TANH_SERIES_LIMIT (an op-amp
+ * input stage in its linear range, i.e. nearly always) by its Taylor series to the z^9 term
+ * (Abramowitz & Stegun, Handbook of Mathematical Functions, 4.5.64): the first term left out,
+ * 1382 z^11 / 155925, is below 1e-19 of the sum there, so the result is Math.tanh's to rounding,
+ * several times cheaper.
  */
-export function tanhSeries(z: number): number {
-  if (Math.abs(z) < TANH_SERIES_LIMIT) {
-    const z2 = z * z;
-    return z * (1 + z2 * (-1 / 3 + z2 * (2 / 15 + z2 * (-17 / 315 + z2 * (62 / 2835)))));
-  }
-  return Math.tanh(z);
+function emitTanh(target: string, z: string): string {
+  return `if (Math.abs(${z}) < ${TANH_SERIES_LIMIT}) {
+  const z2 = ${z} * ${z};
+  ${target} = ${z} * (1 + z2 * (-1 / 3 + z2 * (2 / 15 + z2 * (-17 / 315 + z2 * (62 / 2835)))));
+} else ${target} = Math.tanh(${z});`;
+}
+
+/** Statement limiting the local `limited` (new iterate) against `old` by `limitJunction`; the cheap test is inlined, since most steps are short. */
+function emitLimitJunction(limited: string, old: string, scale: string, saturationAmps: string): string {
+  return `if (!(Math.abs(${limited} - ${old}) <= 2 * ${scale})) ${limited} = limitJunction(${limited}, ${old}, ${scale}, ${saturationAmps});`;
 }
 
 /** Square-law drain current and its partials for vds >= 0 (Shichman & Hodges, IEEE JSSC 3(3), 1968). */
@@ -142,7 +148,7 @@ export interface LimitSlots {
 }
 
 /** The functions emitted device code calls, by the names it calls them. */
-const DEVICE_HELPERS = { limitedExp, limitedExpSlope, limitJunction, squareLaw, tanhSeries, jfetScratch: new Float64Array(3) };
+const DEVICE_HELPERS = { limitJunction, squareLaw, jfetScratch: new Float64Array(3) };
 
 /**
  * Compile `body` (the source of a function body ending in `return ...;`) with the device helpers
@@ -161,9 +167,9 @@ export function emitDeviceEvaluation(kind: DeviceKind, s: DeviceSlots): string {
       // Shockley diode equation, i = Is (exp(v / (m n Vt)) - 1).
       return `{
   const x = ${s.volts(0)} * (1 / ${s.param(1)});
-  const e = limitedExp(x);
+  const e = ${emitLimitedExp('x')};
   ${s.amps(0)} = ${s.param(0)} * (e - 1);
-  ${s.jacobian(0, 0)} = (${s.param(0)} / ${s.param(1)}) * limitedExpSlope(x, e);
+  ${s.jacobian(0, 0)} = (${s.param(0)} / ${s.param(1)}) * ${emitLimitedExpSlope('x', 'e')};
 }`;
     case DeviceKind.Bjt:
       // Ebers-Moll transport model (Ebers & Moll, Proc. IRE 42(12), 1954): forward and reverse
@@ -172,12 +178,12 @@ export function emitDeviceEvaluation(kind: DeviceKind, s: DeviceSlots): string {
   const is = ${s.param(0)}, scale = ${s.param(1)}, betaF = ${s.param(2)}, betaR = ${s.param(3)}, sign = ${s.param(4)};
   const xf = ${s.volts(0)} * (sign / scale);
   const xr = ${s.volts(1)} * (sign / scale);
-  const ef = limitedExp(xf);
-  const er = limitedExp(xr);
+  const ef = ${emitLimitedExp('xf')};
+  const er = ${emitLimitedExp('xr')};
   const forward = is * (ef - 1);
   const reverse = is * (er - 1);
-  const gf = (is / scale) * limitedExpSlope(xf, ef);
-  const gr = (is / scale) * limitedExpSlope(xr, er);
+  const gf = (is / scale) * ${emitLimitedExpSlope('xf', 'ef')};
+  const gr = (is / scale) * ${emitLimitedExpSlope('xr', 'er')};
   ${s.amps(0)} = sign * (forward * (1 + 1 / betaF) - reverse);
   ${s.amps(1)} = sign * (reverse * (1 + 1 / betaR) - forward);
   ${s.jacobian(0, 0)} = gf * (1 + 1 / betaF);
@@ -214,7 +220,9 @@ export function emitDeviceEvaluation(kind: DeviceKind, s: DeviceSlots): string {
     case DeviceKind.InputStage:
       return `{
   const maxAmps = ${s.param(0)};
-  const t = tanhSeries(${s.volts(0)} * (${s.param(1)} / maxAmps));
+  const z = ${s.volts(0)} * (${s.param(1)} / maxAmps);
+  let t;
+  ${emitTanh('t', 'z')}
   ${s.amps(0)} = maxAmps * t;
   ${s.jacobian(0, 0)} = ${s.param(1)} * (1 - t * t);
 }`;
@@ -223,10 +231,10 @@ export function emitDeviceEvaluation(kind: DeviceKind, s: DeviceSlots): string {
   const knee = ${s.param(3)};
   const xa = (${s.volts(0)} - ${s.param(2)}) * (1 / knee);
   const xb = (${s.param(1)} - ${s.volts(0)}) * (1 / knee);
-  const above = limitedExp(xa);
-  const below = limitedExp(xb);
+  const above = ${emitLimitedExp('xa')};
+  const below = ${emitLimitedExp('xb')};
   ${s.amps(0)} = ${s.param(0)} * (above - below);
-  ${s.jacobian(0, 0)} = (${s.param(0)} / knee) * (limitedExpSlope(xa, above) + limitedExpSlope(xb, below));
+  ${s.jacobian(0, 0)} = (${s.param(0)} / knee) * (${emitLimitedExpSlope('xa', 'above')} + ${emitLimitedExpSlope('xb', 'below')});
 }`;
   }
 }
@@ -238,19 +246,34 @@ export function emitDeviceEvaluation(kind: DeviceKind, s: DeviceSlots): string {
 export function emitDeviceLimit(kind: DeviceKind, s: LimitSlots): string {
   switch (kind) {
     case DeviceKind.Junction:
-      return `${s.limited(0)} = limitJunction(${s.limited(0)}, ${s.volts(0)}, ${s.param(1)}, ${s.param(0)});`;
+      return emitLimitJunction(s.limited(0), s.volts(0), s.param(1), s.param(0));
     case DeviceKind.Bjt:
-      return `{
+      return [0, 1]
+        .map(
+          (q) => `{
   const sign = ${s.param(4)};
-  ${s.limited(0)} = sign * limitJunction(sign * ${s.limited(0)}, sign * ${s.volts(0)}, ${s.param(1)}, ${s.param(0)});
-  ${s.limited(1)} = sign * limitJunction(sign * ${s.limited(1)}, sign * ${s.volts(1)}, ${s.param(1)}, ${s.param(0)});
-}`;
+  let limited = sign * ${s.limited(q)};
+  const old = sign * ${s.volts(q)};
+  ${emitLimitJunction('limited', 'old', s.param(1), s.param(0))}
+  ${s.limited(q)} = sign * limited;
+}`,
+        )
+        .join('\n');
     case DeviceKind.RailClamp:
       // The clamp is two junctions: past the high rail and below the low one.
       return `{
   const low = ${s.param(1)}, high = ${s.param(2)};
-  if (${s.limited(0)} > high) ${s.limited(0)} = high + limitJunction(${s.limited(0)} - high, ${s.volts(0)} - high, ${s.param(3)}, ${s.param(0)});
-  else if (${s.limited(0)} < low) ${s.limited(0)} = low - limitJunction(low - ${s.limited(0)}, low - ${s.volts(0)}, ${s.param(3)}, ${s.param(0)});
+  if (${s.limited(0)} > high) {
+    let past = ${s.limited(0)} - high;
+    const old = ${s.volts(0)} - high;
+    ${emitLimitJunction('past', 'old', s.param(3), s.param(0))}
+    ${s.limited(0)} = high + past;
+  } else if (${s.limited(0)} < low) {
+    let past = low - ${s.limited(0)};
+    const old = low - ${s.volts(0)};
+    ${emitLimitJunction('past', 'old', s.param(3), s.param(0))}
+    ${s.limited(0)} = low - past;
+  }
 }`;
     case DeviceKind.Jfet:
     case DeviceKind.InputStage:
@@ -293,3 +316,9 @@ export const limitDeviceStep = compileDispatch<(kind: DeviceKind, params: Float6
   'kind, params, p, vOld, vNew, at',
   (kind) => emitDeviceLimit(kind, arraySlots(kind)),
 );
+
+/** The limited exponential as a function (for tests and reports). */
+export const limitedExp = compileWithDeviceHelpers<(x: number) => number>(`return function limitedExp(x) {\nreturn ${emitLimitedExp('x')};\n};`);
+
+/** tanh as the devices compute it (for tests). */
+export const tanhSeries = compileWithDeviceHelpers<(z: number) => number>(`return function tanhSeries(z) {\nlet t;\n${emitTanh('t', 'z')}\nreturn t;\n};`);

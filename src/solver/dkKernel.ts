@@ -8,7 +8,7 @@
  * without pivoting (its structural zeros skipped). A block it does not settle (a pivot below
  * PIVOT_FLOOR, or no convergence) goes to the processor's robust solve from the same start (damped
  * Newton with pivoting, then homotopy, then hold: dkProcessor.ts), so the fast path changes the
- * cost, never the answer's tolerance. See docs/models.md, "Discretisation" and "Speed".
+ * cost, never the answer's tolerance. See docs/models.md, "Nonlinear solves" and "Speed".
  */
 import { compileWithDeviceHelpers, emitDeviceEvaluation, emitDeviceLimit, type DeviceKind } from './devices.js';
 import type { DkModel } from './dkModel.js';
