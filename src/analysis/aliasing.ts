@@ -4,7 +4,8 @@
  * such component in 20 Hz-20 kHz, relative to the fundamental, is the figure of merit.
  */
 import type { Design } from '../design/types.js';
-import { buildChain, type OversampleFactor } from '../circuit/chain.js';
+import { buildChain } from '../circuit/chain.js';
+import type { OversampleFactor } from '../dsp/oversampler.js';
 import { createToneAnalyzer } from './coherentTone.js';
 import { runSteadyTone } from './toneRun.js';
 

@@ -18,6 +18,7 @@ import { measureHarmonics, type HarmonicReport } from './harmonics.js';
 import { monoFoldDown } from '../audio/mixdown.js';
 import { peakOf, rmsOf } from '../audio/calibration.js';
 import { amplitudeDb } from '../dsp/decibels.js';
+import { AUDIO_BAND_HIGH_HZ, AUDIO_BAND_LOW_HZ } from '../dsp/audioBand.js';
 
 export interface SpectrumPoint {
   hz: number;
@@ -65,8 +66,6 @@ export interface AnalyzeOptions {
 const SPECTRUM_SEGMENT_SECONDS = 8192 / 48000;
 const MIN_SPECTRUM_SEGMENT = 256;
 const SPECTRUM_POINTS = 200;
-const SPECTRUM_LOW_HZ = 20;
-const SPECTRUM_HIGH_HZ = 20_000;
 const SPECTRUM_FLOOR_DB = -240;
 /** Tone detection: segments of about a third of a second, at most this many, spread over the take. */
 const TONE_SEGMENT_SECONDS = 1 / 3;
@@ -100,12 +99,12 @@ export function logSpacedSpectrum(signal: Float64Array, sampleRate: number, poin
 
 /** `logSpacedSpectrum` from an already computed long-term spectrum. */
 export function logSpacedBands({ values, binHz }: WelchResult, sampleRate: number, points = SPECTRUM_POINTS): SpectrumPoint[] {
-  const highHz = Math.min(SPECTRUM_HIGH_HZ, sampleRate / 2);
-  const ratio = Math.pow(highHz / SPECTRUM_LOW_HZ, 1 / points);
+  const highHz = Math.min(AUDIO_BAND_HIGH_HZ, sampleRate / 2);
+  const ratio = Math.pow(highHz / AUDIO_BAND_LOW_HZ, 1 / points);
   const out: SpectrumPoint[] = [];
   let lastBin = -1;
   for (let band = 0; band < points; band++) {
-    const lowHz = SPECTRUM_LOW_HZ * ratio ** band;
+    const lowHz = AUDIO_BAND_LOW_HZ * ratio ** band;
     const from = Math.max(lastBin + 1, Math.ceil(lowHz / binHz));
     const to = Math.min(values.length - 1, Math.floor((lowHz * ratio) / binHz));
     // A band narrower than a bin takes the nearest bin not yet used.

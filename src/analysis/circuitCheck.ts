@@ -9,6 +9,7 @@ import { smallSignalInputOhms, smallSignalResponse } from '../solver/smallSignal
 import { circuitRest, type CircuitRest } from './circuitRest.js';
 import type { CheckWarning, Fact } from './designCheck.js';
 import { logSpaced } from './levelSweep.js';
+import { AUDIO_BAND_HIGH_HZ, AUDIO_BAND_LOW_HZ } from '../dsp/audioBand.js';
 
 /** Where the input impedance a pickup sees is quoted (common practice: mid-band). */
 export const INPUT_IMPEDANCE_HZ = 1000;
@@ -29,7 +30,7 @@ export function checkCircuitStage(stage: CircuitStage, design: Design): CircuitC
   const rest = circuitRest(stage, ctx, design.knobs);
   const { system, operatingPoint } = analyseCircuitStage(stage, ctx, design.knobs);
   const [inputOhms] = smallSignalInputOhms(system, operatingPoint, [INPUT_IMPEDANCE_HZ]);
-  const peakGain = Math.max(...smallSignalResponse(system, operatingPoint, logSpaced(20, 20000, 61)).map(({ re, im }) => Math.hypot(re, im)));
+  const peakGain = Math.max(...smallSignalResponse(system, operatingPoint, logSpaced(AUDIO_BAND_LOW_HZ, AUDIO_BAND_HIGH_HZ, 61)).map(({ re, im }) => Math.hypot(re, im)));
   const facts: Fact[] = [];
   const warnings: CheckWarning[] = rest.warnings.map((w) => ({ code: w.code, stage: stage.id, message: w.message }));
   facts.push({ code: 'circuit-gain', stage: stage.id, label: 'largest small-signal gain, 20 Hz-20 kHz (at the knob positions)', text: `${Number(peakGain.toPrecision(3))} x (${(20 * Math.log10(peakGain)).toFixed(1)} dB)`, value: peakGain });

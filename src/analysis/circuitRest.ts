@@ -6,7 +6,7 @@
  * Microelectronic Circuits, ch. 6 and 7).
  */
 import { analyseCircuitStage } from '../circuit/circuitStage.js';
-import { thermalVoltage } from '../circuit/diode.js';
+import { thermalVoltage } from '../netlist/thermalVoltage.js';
 import { opampRails } from '../netlist/assemble.js';
 import {
   GROUND_NODE,

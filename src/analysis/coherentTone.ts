@@ -6,6 +6,7 @@
  */
 import { createRealFft, isPowerOfTwo, type RealFft } from '../dsp/fft.js';
 import { amplitudeDb } from '../dsp/decibels.js';
+import { AUDIO_BAND_HIGH_HZ, AUDIO_BAND_LOW_HZ } from '../dsp/audioBand.js';
 
 /** Levels in dB are null where there is nothing to compare (a silent fundamental or line). */
 export interface HarmonicLine {
@@ -33,8 +34,6 @@ export interface ToneAnalysis {
   strongestInharmonicHz: number;
 }
 
-const BAND_LOW_HZ = 20;
-const BAND_HIGH_HZ = 20000;
 
 /** Round `hz` to the nearest bin of an N-point window at `sampleRate` (at least bin 1). */
 export function coherentBin(hz: number, sampleRate: number, windowLength: number): number {
@@ -56,7 +55,7 @@ export function createToneAnalyzer(windowLength: number, sampleRate: number): To
 
   return {
     windowLength,
-    analyze(window, k0, maxHarmonicHz = BAND_HIGH_HZ) {
+    analyze(window, k0, maxHarmonicHz = AUDIO_BAND_HIGH_HZ) {
       fft.complexSpectrum(window, spectrum);
       for (let k = 0; k < fft.binCount; k++) {
         power[k] = (spectrum[2 * k] ** 2 + spectrum[2 * k + 1] ** 2) * scale * scale;
@@ -72,8 +71,8 @@ export function createToneAnalyzer(windowLength: number, sampleRate: number): To
         harmonicPower += volts * volts;
         if (order % 2 === 0) evenPower += volts * volts;
       }
-      const lowBin = Math.max(1, Math.ceil(BAND_LOW_HZ / binHz));
-      const highBin = Math.min(fft.binCount - 1, Math.floor(BAND_HIGH_HZ / binHz));
+      const lowBin = Math.max(1, Math.ceil(AUDIO_BAND_LOW_HZ / binHz));
+      const highBin = Math.min(fft.binCount - 1, Math.floor(AUDIO_BAND_HIGH_HZ / binHz));
       let bandPower = 0;
       let strongest = 0;
       let strongestBin = 0;

@@ -4,13 +4,14 @@
  * worst case (every knob at its maximum) for a sine of `inputPeakVolts` at the jack, mid-band.
  * Stages are treated as buffered from each other, as the renderer does.
  */
-import { CONDUCTION_FRACTION } from '../circuit/conduction.js';
+import { CONDUCTION_FRACTION } from '../dsp/conduction.js';
 import { diodeString, forwardVoltage, stringConductance } from '../circuit/diode.js';
 import { nearestStandardValues, type ESeriesName } from '../design/eSeries.js';
 import { isPot, resistanceRange } from '../design/resolve.js';
 import type { ClipperStage, Design, DiodeParams, GainStage, OpampParams, Pot, Resistance, Stage } from '../design/types.js';
 import { formatValue } from '../design/values.js';
 import { checkCircuitStage, INPUT_IMPEDANCE_HZ } from './circuitCheck.js';
+import { AUDIO_BAND_HIGH_HZ } from '../dsp/audioBand.js';
 
 export interface Fact {
   code: string;
@@ -48,7 +49,6 @@ export const MIN_INPUT_IMPEDANCE_OHMS = 250e3;
 /** GBW-limited bandwidth under this at maximum gain audibly dulls the top end. */
 export const MIN_GBW_BANDWIDTH_HZ = 10e3;
 /** The audio band's upper edge, for the slew-rate check. */
-export const AUDIO_BAND_TOP_HZ = 20e3;
 /** Bisection steps for the diode operating point (the bracket shrinks 2^-60: far below any tolerance). */
 const BISECTION_STEPS = 60;
 
@@ -131,7 +131,7 @@ export function diodeStringCurrent(diode: DiodeParams, count: number, driveVolts
   return 0.5 * (low + high);
 }
 
-/** Does a string at `currentAmps` conduct, by the renderer's definition (see circuit/conduction.ts)? */
+/** Does a string at `currentAmps` conduct, by the renderer's definition (see dsp/conduction.ts)? */
 function conducts(diode: DiodeParams, count: number, currentAmps: number, againstOhms: number, temperatureC: number): boolean {
   const string = diodeString(diode, count, temperatureC);
   return string !== null && stringConductance(string, currentAmps) > CONDUCTION_FRACTION / againstOhms;
@@ -271,8 +271,8 @@ function checkGainStage(out: CheckCollector, stage: GainStage, design: Design, i
   if (Number.isFinite(opamp.slewRateVoltsPerSecond)) {
     const fullPowerHz = opamp.slewRateVoltsPerSecond / (2 * Math.PI * symmetricSwing);
     out.fact({ code: 'slew-bandwidth', stage: stage.id, label: 'slew-limited full-power bandwidth', text: `${hzText(fullPowerHz)} at ${voltsText(symmetricSwing)} peak (SR/(2 pi Vpeak), SR ${Number((opamp.slewRateVoltsPerSecond / 1e6).toPrecision(3))} V/us)`, unit: 'Hz', value: fullPowerHz });
-    if (fullPowerHz < AUDIO_BAND_TOP_HZ) {
-      out.warn('slew-limited', stage.id, `a full-swing sine slews above ${hzText(fullPowerHz)} (under ${hzText(AUDIO_BAND_TOP_HZ)}): the ${opamp.name} adds slew distortion at full drive`);
+    if (fullPowerHz < AUDIO_BAND_HIGH_HZ) {
+      out.warn('slew-limited', stage.id, `a full-swing sine slews above ${hzText(fullPowerHz)} (under ${hzText(AUDIO_BAND_HIGH_HZ)}): the ${opamp.name} adds slew distortion at full drive`);
     }
   }
 

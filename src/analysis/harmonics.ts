@@ -15,6 +15,7 @@
  */
 import { createRealFft, floorPowerOfTwo } from '../dsp/fft.js';
 import { blackmanHarrisWindow, windowEnergy } from '../dsp/windows.js';
+import { AUDIO_BAND_HIGH_HZ, AUDIO_BAND_LOW_HZ } from '../dsp/audioBand.js';
 
 export interface Harmonic {
   /** Harmonic number: 2 = second harmonic. */
@@ -61,8 +62,6 @@ const FUNDAMENTAL_BIN_UNCERTAINTY = 0.005;
 const MAX_RECENTRE_BINS = 2;
 /** Search half-width around a given fundamental, as a fraction of it. */
 const FUNDAMENTAL_SEARCH_FRACTION = 0.03;
-const AUDIO_BAND_LOW_HZ = 20;
-const AUDIO_BAND_HIGH_HZ = 20_000;
 /** Level reported for a harmonic with no energy at all (dB re fundamental), keeping JSON finite. */
 export const DBC_FLOOR = -240;
 

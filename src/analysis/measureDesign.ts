@@ -4,7 +4,8 @@
  * the static transfer curve, aliasing, small-signal gain and maximum output swing.
  */
 import type { Design } from '../design/types.js';
-import { buildChain, OVERSAMPLE_FACTORS, type OversampleFactor } from '../circuit/chain.js';
+import { buildChain } from '../circuit/chain.js';
+import { OVERSAMPLE_FACTORS, type OversampleFactor } from '../dsp/oversampler.js';
 import { coherentBin, type HarmonicLine } from './coherentTone.js';
 import { measureSteadyTone, REFERENCE_TONE, TONE_WINDOW } from './referenceTone.js';
 import { findOnset, sweepThdByLevel, type LevelPoint } from './levelSweep.js';

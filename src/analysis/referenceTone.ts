@@ -4,7 +4,8 @@
  * reports it in full; `compare` uses its THD as one number per variant.
  */
 import type { Design } from '../design/types.js';
-import { buildChain, type Chain, type OversampleFactor } from '../circuit/chain.js';
+import { buildChain, type Chain } from '../circuit/chain.js';
+import type { OversampleFactor } from '../dsp/oversampler.js';
 import { coherentBin, createToneAnalyzer, type ToneAnalysis } from './coherentTone.js';
 import { runSteadyTone, settleSeconds } from './toneRun.js';
 

@@ -11,6 +11,7 @@ import { amplitudeDb, powerDb } from '../dsp/decibels.js';
 import { coherentBin, createToneAnalyzer } from './coherentTone.js';
 import { runSteadyTone } from './toneRun.js';
 import { logSpaced } from './levelSweep.js';
+import { AUDIO_BAND_HIGH_HZ, AUDIO_BAND_LOW_HZ } from '../dsp/audioBand.js';
 
 /** The response is probed with the output at or below this level, volts peak: small-signal for any gain. */
 export const RESPONSE_PROBE_OUTPUT_VOLTS = 0.001;
@@ -39,7 +40,7 @@ function wrapDegrees(deg: number): number {
 
 /** Frequencies from 20 Hz to 20 kHz, `perOctave` per octave, rounded to the bins of the window. */
 export function responseFrequencies(sampleRate: number, windowLength: number, points: number): number[] {
-  const bins = logSpaced(20, 20000, points).map((hz) => coherentBin(hz, sampleRate, windowLength));
+  const bins = logSpaced(AUDIO_BAND_LOW_HZ, AUDIO_BAND_HIGH_HZ, points).map((hz) => coherentBin(hz, sampleRate, windowLength));
   return [...new Set(bins)].map((bin) => (bin * sampleRate) / windowLength);
 }
 

@@ -6,10 +6,11 @@
 import { readWavFile } from '../audio/wavRead.js';
 import { integratedLoudness } from '../dsp/loudness.js';
 import type { WelchResult } from '../dsp/welch.js';
-import { measureLevels } from '../render/levels.js';
+import { measureLevels } from '../audio/levels.js';
 import { logSpacedBands, longTermSpectrum, type SpectrumPoint } from './analyzeTake.js';
 import { monoFoldDown } from '../audio/mixdown.js';
 import { amplitudeDb } from '../dsp/decibels.js';
+import { AUDIO_BAND_HIGH_HZ, AUDIO_BAND_LOW_HZ } from '../dsp/audioBand.js';
 
 export interface TakeMetrics {
   loudnessLufs: number | null;
@@ -20,8 +21,6 @@ export interface TakeMetrics {
   spectrum: SpectrumPoint[];
 }
 
-const CENTROID_LOW_HZ = 20;
-const CENTROID_HIGH_HZ = 20_000;
 
 /**
  * Spectral centroid sum(f P(f)) / sum(P(f)) of a long-term spectrum (Welch's averaged periodogram,
@@ -30,8 +29,8 @@ const CENTROID_HIGH_HZ = 20_000;
  * power in the band.
  */
 export function spectralCentroidHz({ values, binHz }: WelchResult): number | null {
-  const lowBin = Math.ceil(CENTROID_LOW_HZ / binHz);
-  const highBin = Math.min(values.length - 1, Math.floor(CENTROID_HIGH_HZ / binHz));
+  const lowBin = Math.ceil(AUDIO_BAND_LOW_HZ / binHz);
+  const highBin = Math.min(values.length - 1, Math.floor(AUDIO_BAND_HIGH_HZ / binHz));
   let weighted = 0;
   let total = 0;
   for (let k = lowBin; k <= highBin; k++) {

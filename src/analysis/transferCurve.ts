@@ -10,6 +10,7 @@
 import type { CircuitContext, Design, Stage } from '../design/types.js';
 import { createStageProcessor, isNonlinearStage, stageAnalogResponse, stageTimeConstantSum } from '../circuit/stageModels.js';
 import { logSpaced } from './levelSweep.js';
+import { AUDIO_BAND_HIGH_HZ, AUDIO_BAND_LOW_HZ } from '../dsp/audioBand.js';
 
 export interface TransferPoint {
   vin: number;
@@ -21,7 +22,7 @@ const HOLD_SAMPLES = 64;
 const RAMP_RATE = 768000;
 
 function passbandGain(stage: Stage<number>, ctx: CircuitContext, knobs: Record<string, number>): number {
-  return Math.max(...stageAnalogResponse(stage, ctx, knobs, logSpaced(20, 20000, 61)).map(({ re, im }) => Math.hypot(re, im)));
+  return Math.max(...stageAnalogResponse(stage, ctx, knobs, logSpaced(AUDIO_BAND_LOW_HZ, AUDIO_BAND_HIGH_HZ, 61)).map(({ re, im }) => Math.hypot(re, im)));
 }
 
 /** A circuit stage keeps its capacitors: its curve is traced by the rising half of a settled tone. */

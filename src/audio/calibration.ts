@@ -3,7 +3,7 @@
  * fixed `fullScaleVolts` (volts peak at 0 dBFS) or scaled so its peak is `inputPeakVolts`; a render is
  * written back with the same volts-per-full-scale, so a unity design returns its input.
  */
-import { UserError } from '../errors.js';
+import { requirePositive, UserError } from '../errors.js';
 
 export type CalibrationScale = { fullScaleVolts: number } | { inputPeakVolts: number };
 
@@ -43,10 +43,6 @@ export function rmsOf(channels: ReadonlyArray<Float32Array | Float64Array>): num
  */
 export const MAX_TAKE_PEAK_FULL_SCALE = 1e6;
 
-function requirePositiveVolts(volts: number, what: string): void {
-  if (!Number.isFinite(volts) || volts <= 0) throw new UserError(`${what} must be a positive number of volts (got ${volts})`);
-}
-
 /**
  * The calibration of one take: volts = samples x voltsPerFullScale on the way in, and the same
  * factor back on the way out. `sourceName` (e.g. the file path) names the take in errors.
@@ -62,10 +58,10 @@ export function calibrate(channels: readonly Float32Array[], scale: CalibrationS
   }
   let voltsPerFullScale: number;
   if ('fullScaleVolts' in scale) {
-    requirePositiveVolts(scale.fullScaleVolts, 'full-scale voltage');
+    requirePositive(scale.fullScaleVolts, 'full-scale voltage', 'volts');
     voltsPerFullScale = scale.fullScaleVolts;
   } else {
-    requirePositiveVolts(scale.inputPeakVolts, 'input peak');
+    requirePositive(scale.inputPeakVolts, 'input peak', 'volts');
     if (digitalPeak === 0) {
       const where = sourceName === undefined ? '' : `${sourceName}: `;
       throw new UserError(`${where}take is silent (all samples 0), cannot scale it to an input peak of ${scale.inputPeakVolts} V`);

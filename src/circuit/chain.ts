@@ -8,11 +8,8 @@
  */
 import type { CircuitContext, Design, Stage } from '../design/types.js';
 import { createOversampler, type OversampleFactor, type Oversampler } from '../dsp/oversampler.js';
-import type { Processor } from './processor.js';
+import type { Processor } from '../dsp/processor.js';
 import { createStageRun, isNonlinearStage, type StageProcessor } from './stageModels.js';
-
-export type { OversampleFactor };
-export const OVERSAMPLE_FACTORS: readonly OversampleFactor[] = [1, 2, 4, 8, 16];
 
 export const CHAIN_BLOCK_SIZE = 1024;
 

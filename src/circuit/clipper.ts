@@ -8,14 +8,14 @@
  * i.e. the shared diode node (diodeNode.ts) driven by j = vin / R with G_r = 1 / R. The output is the
  * node voltage (the stage after it is assumed to be buffered).
  */
+import { requirePositive } from '../errors.js';
 import { analog, type AnalogTransferFunction } from '../dsp/bilinear.js';
-import { requirePositive } from '../dsp/firstOrderSection.js';
 import type { CircuitContext, ClipperStage } from '../design/types.js';
-import type { ConductionMeter } from './conduction.js';
+import type { ConductionMeter } from '../dsp/conduction.js';
 import { diodeString, validateDiode } from './diode.js';
 import { DiodeNode, designDiodeNode, type DiodeNodeDesign, type DiodeSolverKind } from './diodeNode.js';
 import { networkConductanceAtZero, type DiodeNetwork } from './diodeNodeSolver.js';
-import type { Processor } from './processor.js';
+import type { Processor } from '../dsp/processor.js';
 
 export interface ClipperDesign {
   readonly stageId: string;

@@ -7,15 +7,9 @@
  * ch. 4, and the SPICE diode model.) A string of m equal diodes carries one current and splits the
  * voltage m ways, so it behaves as one diode with n -> m n and Rs -> m Rs (docs/models.md, "Elements").
  */
-import { UserError } from '../errors.js';
+import { requirePositive, UserError } from '../errors.js';
 import type { DiodeParams } from '../design/types.js';
-import { requirePositive } from '../dsp/firstOrderSection.js';
-
-/** Boltzmann constant, exact in the 2019 SI. */
-export const BOLTZMANN_JOULES_PER_KELVIN = 1.380649e-23;
-/** Elementary charge, exact in the 2019 SI. */
-export const ELEMENTARY_CHARGE_COULOMBS = 1.602176634e-19;
-const ZERO_CELSIUS_KELVIN = 273.15;
+import { thermalVoltage } from '../netlist/thermalVoltage.js';
 
 /** Saturation currents below this are not physical and would push exp() towards overflow. */
 const MIN_SATURATION_AMPS = 1e-30;
@@ -28,11 +22,6 @@ export interface DiodeString {
   readonly saturationAmps: number; // Is
   readonly emissionVolts: number; // m n Vt: the exponential's voltage scale
   readonly seriesOhms: number; // m Rs
-}
-
-/** Vt = k T / q in volts; 25.69 mV at 25 C. */
-export function thermalVoltage(temperatureC: number): number {
-  return (BOLTZMANN_JOULES_PER_KELVIN * (temperatureC + ZERO_CELSIUS_KELVIN)) / ELEMENTARY_CHARGE_COULOMBS;
 }
 
 /** Throws a UserError naming `where` unless the diode parameters and count are usable. */

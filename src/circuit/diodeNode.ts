@@ -14,8 +14,8 @@
  * `diodeNodeSolver.ts` with G = a + G_r, solved by Newton ('newton') or by the precomputed table
  * with Newton outside its range ('table').
  */
-import type { ConductionMeter } from './conduction.js';
-import { CONDUCTION_FRACTION } from './conduction.js';
+import type { ConductionMeter } from '../dsp/conduction.js';
+import { CONDUCTION_FRACTION } from '../dsp/conduction.js';
 import { voltageAtConductance } from './diode.js';
 import { DiodeNodeSolver, type DiodeNetwork } from './diodeNodeSolver.js';
 import { limitInputVolts } from './inputLimit.js';

@@ -16,6 +16,7 @@
  *
  * Then slew rate and soft rails (opamp.ts) for every variant.
  */
+import { requirePositive } from '../errors.js';
 import {
   addPolynomials,
   analog,
@@ -24,16 +25,15 @@ import {
   type AnalogTransferFunction,
   type DigitalTransferFunction,
 } from '../dsp/bilinear.js';
-import { requirePositive } from '../dsp/firstOrderSection.js';
 import { createIirFilter } from '../dsp/iir.js';
 import type { CircuitContext, GainStage } from '../design/types.js';
-import type { ConductionMeter } from './conduction.js';
+import type { ConductionMeter } from '../dsp/conduction.js';
 import { diodeString, validateDiode } from './diode.js';
 import { DiodeNode, designDiodeNode, type DiodeNodeDesign, type DiodeSolverKind } from './diodeNode.js';
 import { networkConductanceAtZero, type DiodeNetwork } from './diodeNodeSolver.js';
 import { limitInputVolts } from './inputLimit.js';
 import { OpampStage, designOpampOutput, withGainBandwidth, type OpampOutputDesign, type RailMeter } from './opamp.js';
-import type { Processor } from './processor.js';
+import type { Processor } from '../dsp/processor.js';
 
 export interface GainStageDesign {
   readonly stageId: string;

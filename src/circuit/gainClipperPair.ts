@@ -17,12 +17,12 @@
  * load on the loop's chain.
  */
 import type { ClipperDesign } from './clipper.js';
-import type { ConductionMeter } from './conduction.js';
+import type { ConductionMeter } from '../dsp/conduction.js';
 import { DiodeNode } from './diodeNode.js';
 import type { GainStageDesign } from './gain.js';
 import { limitInputVolts, MAX_INPUT_VOLTS } from './inputLimit.js';
 import { OpampStage, type RailMeter } from './opamp.js';
-import type { Processor } from './processor.js';
+import type { Processor } from '../dsp/processor.js';
 
 export interface GainClipperPair extends Processor, RailMeter, ConductionMeter {
   /** The gain stage alone (its rails are the pair's). */

@@ -6,11 +6,12 @@
  * a first-order high-pass with corner fc = 1 / (2 pi (Rs + Rp) C) and high-frequency gain
  * Rp / (Rs + Rp).
  */
+import { requirePositive } from '../errors.js';
 import { analog, type AnalogTransferFunction, type DigitalTransferFunction } from '../dsp/bilinear.js';
-import { discretiseFirstOrder, rcCornerHz, requirePositive } from '../dsp/firstOrderSection.js';
+import { discretiseFirstOrder, rcCornerHz } from '../dsp/firstOrderSection.js';
 import { createIirFilter } from '../dsp/iir.js';
 import type { CircuitContext, InputStage } from '../design/types.js';
-import type { Processor } from './processor.js';
+import type { Processor } from '../dsp/processor.js';
 
 export function inputStageSmallSignal(spec: InputStage<number>, _ctx?: CircuitContext): AnalogTransferFunction {
   requirePositive(spec.series, `stage "${spec.id}" series`, 'ohms', true);

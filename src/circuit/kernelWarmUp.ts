@@ -16,7 +16,7 @@
  * the warm-up measurably slowed the fused kernel (about 15 %); a render that reaches them pays one
  * deoptimisation.
  */
-import type { Processor } from './processor.js';
+import type { Processor } from '../dsp/processor.js';
 
 export interface WarmUpSignal {
   /** Largest drive, volts. */

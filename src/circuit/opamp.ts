@@ -10,7 +10,7 @@
  * The limits act on the output of the linear (or diode) loop model; the loop itself is not
  * re-solved during slewing or saturation (a common simplification).
  */
-import { UserError } from '../errors.js';
+import { requirePositive, UserError } from '../errors.js';
 import {
   addPolynomials,
   analog,
@@ -18,7 +18,6 @@ import {
   type AnalogTransferFunction,
   type DigitalTransferFunction,
 } from '../dsp/bilinear.js';
-import { requirePositive } from '../dsp/firstOrderSection.js';
 import type { CircuitContext, OpampParams } from '../design/types.js';
 import { limitInputVolts } from './inputLimit.js';
 

@@ -6,11 +6,12 @@
  * Both have their -3 dB corner at fc = 1 / (2 pi R C) (any circuits text, e.g. Horowitz & Hill,
  * The Art of Electronics, 3rd ed., sec. 1.7).
  */
+import { requirePositive } from '../errors.js';
 import { analog, type AnalogTransferFunction, type DigitalTransferFunction } from '../dsp/bilinear.js';
-import { discretiseFirstOrder, rcCornerHz, requirePositive } from '../dsp/firstOrderSection.js';
+import { discretiseFirstOrder, rcCornerHz } from '../dsp/firstOrderSection.js';
 import { createIirFilter } from '../dsp/iir.js';
 import type { CircuitContext, RcStage } from '../design/types.js';
-import type { Processor } from './processor.js';
+import type { Processor } from '../dsp/processor.js';
 
 export function rcFilterSmallSignal(spec: RcStage<number>, _ctx?: CircuitContext): AnalogTransferFunction {
   validateRcFilter(spec);

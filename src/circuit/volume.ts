@@ -6,7 +6,7 @@ import { analog, bilinearTransform, type AnalogTransferFunction, type DigitalTra
 import { UserError } from '../errors.js';
 import { potFraction } from '../design/taper.js';
 import type { CircuitContext, VolumeStage } from '../design/types.js';
-import type { Processor } from './processor.js';
+import type { Processor } from '../dsp/processor.js';
 
 /** H(s) = k, the divider ratio at `position` (0..1, 0 fully counter-clockwise). */
 export function volumeStageSmallSignal(spec: VolumeStage, position: number): AnalogTransferFunction {

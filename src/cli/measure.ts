@@ -10,6 +10,7 @@ import { PREDICTION_BASIS } from '../analysis/response.js';
 import { formatRows, formatSignificant, formatValue } from '../report/table.js';
 import { writeMeasureHtml, writeMeasureJson } from '../report/measureReport.js';
 import { collect, parseOversample, parsePositiveNumber } from './options.js';
+import { AUDIO_BAND_HIGH_HZ, AUDIO_BAND_LOW_HZ } from '../dsp/audioBand.js';
 
 interface MeasureFlags {
   freq: string;
@@ -91,7 +92,7 @@ export function registerMeasureCommand(program: Command): void {
       const parts = loadPartsLibrary(flags.parts);
       const design = resolveDesign(await readDesignFile(designPath, parts, flags.set ?? []));
       const freqHz = parsePositiveNumber('--freq', flags.freq, 'Hz');
-      if (freqHz < 20 || freqHz > 20000) throw new UserError(`--freq: ${freqHz} Hz is outside the audio band (expected 20 to 20000 Hz)`);
+      if (freqHz < AUDIO_BAND_LOW_HZ || freqHz > AUDIO_BAND_HIGH_HZ) throw new UserError(`--freq: ${freqHz} Hz is outside the audio band (expected ${AUDIO_BAND_LOW_HZ} to ${AUDIO_BAND_HIGH_HZ} Hz)`);
       const report = measureDesign(design, {
         ...DEFAULT_MEASURE_OPTIONS,
         freqHz,

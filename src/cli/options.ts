@@ -2,7 +2,7 @@
 import type { Command } from 'commander';
 import { UserError } from '../errors.js';
 import { defaultThreadCount } from '../render/workerPool.js';
-import { OVERSAMPLE_FACTORS, type OversampleFactor } from '../circuit/chain.js';
+import { OVERSAMPLE_FACTORS, type OversampleFactor } from '../dsp/oversampler.js';
 import type { CalibrationScale } from '../audio/calibration.js';
 import type { WavOutputBits } from '../audio/wavWrite.js';
 

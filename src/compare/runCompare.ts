@@ -13,7 +13,7 @@ import { loadPartsLibrary, type PartsLibrary } from '../design/parts.js';
 import { readDesignFile } from '../design/parseDesign.js';
 import { resolveDesign } from '../design/resolve.js';
 import type { Design } from '../design/types.js';
-import type { OversampleFactor } from '../circuit/chain.js';
+import type { OversampleFactor } from '../dsp/oversampler.js';
 import { referenceThdPercent } from '../analysis/referenceTone.js';
 import { DEFAULT_MEASURE_OPTIONS } from '../analysis/measureDesign.js';
 import type { SpectrumPoint } from '../analysis/analyzeTake.js';

@@ -5,7 +5,7 @@
  */
 import type { CalibrationScale } from '../audio/calibration.js';
 import type { WavOutputBits } from '../audio/wavWrite.js';
-import type { OversampleFactor } from '../circuit/chain.js';
+import type { OversampleFactor } from '../dsp/oversampler.js';
 
 /** One player on the page: the dry take or one variant's render of one take. */
 export interface CompareEntry {

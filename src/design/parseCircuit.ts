@@ -8,7 +8,7 @@ import { ELEMENT_FIELDS, ELEMENT_PIN_COUNT, ELEMENT_TYPES, fieldNames } from './
 import { childPath } from './locator.js';
 import { lookupBjt, lookupJfet, lookupOpamp, parseBjtEntry, parseJfetEntry } from './parts.js';
 import { isRawObject, readBoolean, readObject, readString, rejectUnknownFields, requireField, showRaw, type RawObject } from './rawReaders.js';
-import { readDiode, readTaper, STAGE_ID_PATTERN, useKnob, type StageParseContext } from './parseStages.js';
+import { readDiode, readTaper, STAGE_ID_PATTERN, useKnob, type StageParseContext } from './stageReaders.js';
 import { suggestionText } from './suggest.js';
 import { RESERVED_NODES, type CircuitElement, type CircuitStage, type ElementType } from './types.js';
 import { parseValue } from './values.js';

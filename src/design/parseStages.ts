@@ -5,7 +5,7 @@
 import { UserError } from '../errors.js';
 import { POT_FIELDS, STAGE_FIELDS, STAGE_TYPES, fieldNames } from './fields.js';
 import { childPath, type Locator } from './locator.js';
-import { lookupDiode, lookupOpamp, parseDiodeEntry, type PartsLibrary } from './parts.js';
+import { lookupOpamp } from './parts.js';
 import {
   isRawObject,
   readBoolean,
@@ -14,24 +14,13 @@ import {
   readString,
   rejectUnknownFields,
   requireField,
-  showRaw,
   type RawObject,
 } from './rawReaders.js';
 import { suggestionText } from './suggest.js';
 import { parseCircuitStage } from './parseCircuit.js';
+import { readDiode, readTaper, STAGE_ID_PATTERN, useKnob, type StageParseContext } from './stageReaders.js';
 import type { ClipperStage, DiodeParams, GainStage, Pot, Resistance, Stage, StageType, Taper } from './types.js';
 import { parseValue } from './values.js';
-
-const TAPERS: readonly Taper[] = ['linear', 'audio'];
-export const STAGE_ID_PATTERN = /^[A-Za-z_][A-Za-z0-9_-]*$/;
-
-/** What the stage parsers share: where errors point, the parts to look up, and the knobs pots use. */
-export interface StageParseContext {
-  where: Locator;
-  parts: PartsLibrary;
-  /** knob name -> JSON path of the first pot that uses it */
-  knobUses: Map<string, string>;
-}
 
 /** Reads the fields of one raw stage object, each error naming `stages[i].field`. */
 class StageReader {
@@ -104,18 +93,6 @@ class StageReader {
   }
 }
 
-export function readTaper(value: unknown, path: string, where: Locator): Taper {
-  if (typeof value === 'string' && (TAPERS as readonly string[]).includes(value)) return value as Taper;
-  const hint = typeof value === 'string' ? suggestionText(value, TAPERS) : `(expected one of: ${TAPERS.join(', ')})`;
-  throw new UserError(`${where.at(path)}: ${showRaw(value)} is not a pot taper ${hint}`);
-}
-
-export function useKnob(value: unknown, path: string, ctx: StageParseContext): string {
-  const knob = readString(value, path, ctx.where, 'a knob name');
-  if (!ctx.knobUses.has(knob)) ctx.knobUses.set(knob, path);
-  return knob;
-}
-
 function readPot(raw: RawObject, path: string, ctx: StageParseContext): Pot {
   rejectUnknownFields(raw, fieldNames(POT_FIELDS), path, ctx.where, 'a pot');
   const at = (key: string): string => childPath(path, key);
@@ -135,11 +112,6 @@ export function readResistance(value: unknown, path: string, ctx: StageParseCont
   return parseValue(value, ctx.where.at(path), 'ohm', { allowZero });
 }
 
-/** A diode field: a part name, or an inline `{ saturationCurrent, ideality, seriesResistance }`. */
-export function readDiode(value: unknown, path: string, inlineName: string, ctx: StageParseContext): DiodeParams {
-  if (isRawObject(value)) return parseDiodeEntry(value, inlineName, path, ctx.where, `inline in ${ctx.where.fileName}`);
-  return lookupDiode(ctx.parts, value, path, ctx.where);
-}
 
 function parseGain(stage: StageReader): GainStage {
   const rf = stage.optionalResistance('rf', 0, true) as Resistance;

@@ -27,10 +27,3 @@ export function discretiseFirstOrder(
   return bilinearTransform(tf, sampleRate, cornerHz < PREWARP_LIMIT * (sampleRate / 2) ? cornerHz : undefined);
 }
 
-/** Throws a UserError unless `value` is a finite number above zero (at least zero with `allowZero`). */
-export function requirePositive(value: number, where: string, unit: string, allowZero = false): void {
-  const ok = Number.isFinite(value) && (allowZero ? value >= 0 : value > 0);
-  if (!ok) {
-    throw new UserError(`${where}: expected ${allowZero ? 'zero or more' : 'a value above zero'} in ${unit}, got ${value}`);
-  }
-}

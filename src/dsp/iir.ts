@@ -1,4 +1,4 @@
-import type { Processor } from '../circuit/processor.js';
+import type { Processor } from './processor.js';
 import type { DigitalTransferFunction } from './bilinear.js';
 
 /** Highest order the unrolled kernel takes; every section the bilinear transform makes here fits. */

@@ -14,11 +14,13 @@
 import { designHalfband } from './halfband.js';
 import { HalfbandDecimator, HalfbandInterpolator } from './halfbandFilters.js';
 import { arenaLength, KernelArena } from '../wasm/halfbandKernels.js';
+import { AUDIO_BAND_HIGH_HZ } from './audioBand.js';
 
 export type OversampleFactor = 1 | 2 | 4 | 8 | 16;
+export const OVERSAMPLE_FACTORS: readonly OversampleFactor[] = [1, 2, 4, 8, 16];
 
 /** Audio band kept flat and alias-free, at 44.1 kHz and above; scaled with the rate below that. */
-export const PASSBAND_EDGE_HZ = 20000;
+export const PASSBAND_EDGE_HZ = AUDIO_BAND_HIGH_HZ;
 const PASSBAND_EDGE_FRACTION_MIN_RATE = PASSBAND_EDGE_HZ / 44100;
 /** Stopband attenuation of every stage, measured on its design (the requirement is >= 100 dB; 1 dB margin). */
 export const STOPBAND_ATTENUATION_DB = 101;

@@ -4,11 +4,11 @@
  * nonlinear devices with their ports. The solver never sees element types; the physics of each
  * element is in this expansion (see docs/models.md, "Elements") and in `solver/devices.ts`.
  */
-import { UserError } from '../errors.js';
+import { requirePositive } from '../errors.js';
 import { potFraction } from '../design/taper.js';
 import { GROUND_NODE, REFERENCE_NODE, SUPPLY_NODE, type CircuitContext, type CircuitStage, type OpampParams } from '../design/types.js';
-import { thermalVoltage } from '../circuit/diode.js';
-import { DeviceKind } from '../solver/devices.js';
+import { thermalVoltage } from './thermalVoltage.js';
+import { DeviceKind } from './deviceKind.js';
 
 /** Node index of ground: not an unknown of the system. */
 export const GROUND = -1;
@@ -119,10 +119,6 @@ class NodeTable {
   }
 }
 
-function requireFinitePositive(value: number, what: string): void {
-  if (!(value > 0) || !Number.isFinite(value)) throw new UserError(`${what}: expected a finite value above 0, got ${value}`);
-}
-
 /** Rails of an op-amp output on this supply: [low, high] volts, scaled with `supplyScale` for source stepping. */
 export function opampRails(opamp: OpampParams, supplyVolts: number, supplyScale: number): [number, number] {
   const low = opamp.headroomLowVolts;
@@ -167,15 +163,15 @@ export function assembleCircuit(
     const pin = element.nodes.map((name) => nodes.of(name));
     switch (element.type) {
       case 'resistor':
-        requireFinitePositive(element.ohms, `${where(element.id)} value`);
+        requirePositive(element.ohms, `${where(element.id)} value`, 'ohms');
         resistor(pin[0], pin[1], element.ohms);
         break;
       case 'capacitor':
-        requireFinitePositive(element.farads, `${where(element.id)} value`);
+        requirePositive(element.farads, `${where(element.id)} value`, 'farads');
         if (pin[0] !== pin[1]) out.capacitors.push({ a: pin[0], b: pin[1], farads: element.farads, elementId: element.id });
         break;
       case 'pot': {
-        requireFinitePositive(element.ohms, `${where(element.id)} value`);
+        requirePositive(element.ohms, `${where(element.id)} value`, 'ohms');
         const position = knobs[element.knob] ?? 0.5;
         const fraction = potFraction(element.taper, position, element.reverse);
         resistor(pin[0], pin[1], Math.max(POT_END_OHMS, fraction * element.ohms));

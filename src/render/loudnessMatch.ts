@@ -5,7 +5,7 @@
  * sound itself is unchanged; integrated loudness scales with that gain (L + 20 log10 g).
  */
 import { integratedLoudness } from '../dsp/loudness.js';
-import { measureLevels } from './levels.js';
+import { measureLevels } from '../audio/levels.js';
 import { amplitudeDb } from '../dsp/decibels.js';
 
 export interface LoudnessMatchTarget {

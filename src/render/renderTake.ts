@@ -7,9 +7,10 @@
 import type { DecodedWav } from '../audio/wavRead.js';
 import { calibrate, type CalibrationScale } from '../audio/calibration.js';
 import type { Design } from '../design/types.js';
-import { buildChain, type OversampleFactor } from '../circuit/chain.js';
+import { buildChain } from '../circuit/chain.js';
+import type { OversampleFactor } from '../dsp/oversampler.js';
 import { renderInto, type RenderProgress } from '../circuit/renderChannel.js';
-import { findOvers, measureLevels, voltsToDbfs, type OverReport } from './levels.js';
+import { findOvers, measureLevels, voltsToDbfs, type OverReport } from '../audio/levels.js';
 
 export interface RenderTakeOptions {
   oversample: OversampleFactor;

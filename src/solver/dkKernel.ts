@@ -10,7 +10,8 @@
  * Newton with pivoting, then homotopy, then hold: dkProcessor.ts), so the fast path changes the
  * cost, never the answer's tolerance. See docs/models.md, "Nonlinear solves" and "Speed".
  */
-import { compileWithDeviceHelpers, emitDeviceEvaluation, emitDeviceLimit, type DeviceKind } from './devices.js';
+import type { DeviceKind } from '../netlist/deviceKind.js';
+import { compileWithDeviceHelpers, emitDeviceEvaluation, emitDeviceLimit } from './devices.js';
 import type { DkModel } from './dkModel.js';
 
 /** Newton steps the generated solve takes before it hands a block to the robust solve. */

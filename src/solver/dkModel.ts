@@ -17,7 +17,7 @@
 import { UserError } from '../errors.js';
 import { GROUND } from '../netlist/assemble.js';
 import { factorLu, solveLu } from './denseLu.js';
-import { PORT_COUNT } from './devices.js';
+import { PORT_COUNT } from '../netlist/deviceKind.js';
 import { stampConductance, type MnaSystem } from './mna.js';
 import type { OperatingPoint } from './operatingPoint.js';
 

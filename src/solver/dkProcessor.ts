@@ -15,10 +15,11 @@
  * reaches the state. `fallbackSamples` counts blocks that needed (1) or (2), `holdSamples` those that
  * needed (2). Neither path allocates or creates closures per sample.
  */
-import type { Processor } from '../circuit/processor.js';
-import { CONDUCTION_FRACTION, type ConductionMeter } from '../circuit/conduction.js';
+import type { Processor } from '../dsp/processor.js';
+import { CONDUCTION_FRACTION, type ConductionMeter } from '../dsp/conduction.js';
 import { factorLu, solveLu } from './denseLu.js';
-import { DeviceKind, evaluateDevice, limitDeviceStep, PORT_COUNT } from './devices.js';
+import { DeviceKind, PORT_COUNT } from '../netlist/deviceKind.js';
+import { evaluateDevice, limitDeviceStep } from './devices.js';
 import { compileDkKernel, type DkKernel, type KernelHost } from './dkKernel.js';
 import type { DkModel } from './dkModel.js';
 import type { MnaSystem } from './mna.js';
@@ -36,7 +37,7 @@ const HOLD_RESIDUAL = 1e-4;
 /**
  * A diode string conducts when its incremental conductance exceeds this share of the conductance the
  * rest of the circuit shows its port (1 / |F_kk|): the same definition as the named stages'
- * (circuit/conduction.ts).
+ * (dsp/conduction.ts).
  */
 const CONDUCTION_SHARE = CONDUCTION_FRACTION;
 

@@ -9,7 +9,7 @@
  * i the nonlinear devices' port currents, injected by Ni and sensed by Nv. See docs/models.md, "Nodal analysis".
  */
 import { GROUND, type AssembledCircuit } from '../netlist/assemble.js';
-import { PORT_COUNT, type DeviceKind } from './devices.js';
+import { PORT_COUNT, type DeviceKind } from '../netlist/deviceKind.js';
 
 export interface MnaSystem {
   stageId: string;

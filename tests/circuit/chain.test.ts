@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { buildChain, OVERSAMPLE_FACTORS } from '../../src/circuit/chain.js';
+import { buildChain } from '../../src/circuit/chain.js';
+import { OVERSAMPLE_FACTORS } from '../../src/dsp/oversampler.js';
 import { renderChannel } from '../../src/circuit/renderChannel.js';
 import type { Design } from '../../src/design/types.js';
 import { IDEAL_OPAMP } from './parts.js';

@@ -11,7 +11,7 @@ import { buildChain } from '../../src/circuit/chain.js';
 import { parseDesignText } from '../../src/design/parseDesign.js';
 import { loadPartsLibrary } from '../../src/design/parts.js';
 import { resolveDesign } from '../../src/design/resolve.js';
-import { thermalVoltage } from '../../src/circuit/diode.js';
+import { thermalVoltage } from '../../src/netlist/thermalVoltage.js';
 import { PROJECT_ROOT } from '../helpers/cli.js';
 
 const parts = loadPartsLibrary();

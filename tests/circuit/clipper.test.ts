@@ -2,7 +2,7 @@
 import { describe, expect, test } from 'vitest';
 import fc from 'fast-check';
 import { clipperSmallSignal, createClipper, designClipper } from '../../src/circuit/clipper.js';
-import { thermalVoltage } from '../../src/circuit/diode.js';
+import { thermalVoltage } from '../../src/netlist/thermalVoltage.js';
 import { TABLE_TOLERANCE_VOLTS } from '../../src/circuit/diodeNode.js';
 import { bilinearTransform, digitalResponse } from '../../src/dsp/bilinear.js';
 import type { CircuitContext, ClipperStage, DiodeParams } from '../../src/design/types.js';

@@ -1,6 +1,7 @@
 // Tests for src/circuit/diode.ts (Shockley diode strings).
 import { describe, expect, test } from 'vitest';
-import { diodeString, forwardVoltage, stringConductance, thermalVoltage, voltageAtConductance } from '../../src/circuit/diode.js';
+import { diodeString, forwardVoltage, stringConductance, voltageAtConductance } from '../../src/circuit/diode.js';
+import { thermalVoltage } from '../../src/netlist/thermalVoltage.js';
 import { UserError } from '../../src/errors.js';
 import { validateDiode } from '../../src/circuit/diode.js';
 import { expectClose } from '../helpers/expectClose.js';

@@ -1,5 +1,5 @@
 import { lambertW0Log } from 'lambert-w-function';
-import { thermalVoltage } from '../../src/circuit/diode.js';
+import { thermalVoltage } from '../../src/netlist/thermalVoltage.js';
 import type { DiodeParams } from '../../src/design/types.js';
 
 /**

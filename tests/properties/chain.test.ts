@@ -9,7 +9,8 @@
  */
 import fc from 'fast-check';
 import { describe, expect, test } from 'vitest';
-import { buildChain, OVERSAMPLE_FACTORS } from '../../src/circuit/chain.js';
+import { buildChain } from '../../src/circuit/chain.js';
+import { OVERSAMPLE_FACTORS } from '../../src/dsp/oversampler.js';
 import { renderChannel } from '../../src/circuit/renderChannel.js';
 import { createStageProcessor } from '../../src/circuit/stageModels.js';
 import { parseDesignText } from '../../src/design/parseDesign.js';

@@ -2,7 +2,8 @@
 // the per-circuit kernels: the helpers against Math and the handbook series they stand for, and the
 // Shockley diode against its formula.
 import { describe, expect, test } from 'vitest';
-import { DeviceKind, evaluateDevice, limitedExp, tanhSeries } from '../../src/solver/devices.js';
+import { DeviceKind } from '../../src/netlist/deviceKind.js';
+import { evaluateDevice, limitedExp, tanhSeries } from '../../src/solver/devices.js';
 import { expectClose } from '../helpers/expectClose.js';
 
 describe('tanhSeries', () => {

@@ -1,5 +1,5 @@
 /** Level statistics of multichannel signals held in digital full scale. */
-import { peakOf, rmsOf } from '../audio/calibration.js';
+import { peakOf, rmsOf } from './calibration.js';
 import { amplitudeDb } from '../dsp/decibels.js';
 
 export interface LevelStats {
