@@ -1,8 +1,8 @@
 /**
  * Chance of a blind-test score under pure guessing: with `trials` independent trials, each right
  * with probability 1/2, P(K >= correct) = sum_{i=correct}^{trials} C(trials, i) / 2^trials
- * (binomial distribution, upper tail). The listening page runs this same function (its source is
- * embedded in the page), so it must stay self-contained: no imports, no outside names.
+ * (binomial distribution, upper tail). The listening page runs this same function (the build bundles
+ * it into the page's script, src/page/listeningPage.ts).
  */
 export function binomialTailProbability(correct: number, trials: number): number {
   // Whole numbers expected; trials up to about 1000 (2^-trials must not underflow).
