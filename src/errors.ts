@@ -10,6 +10,14 @@ export class UserError extends Error {
   }
 }
 
+/** A write refused because the disk is full (ENOSPC): a run that meets it stops and removes what it wrote. */
+export class DiskFullError extends UserError {
+  constructor(path: string) {
+    super(`${path}: cannot write, the disk is full`);
+    this.name = 'DiskFullError';
+  }
+}
+
 /** Throws a UserError unless `value` is a finite number above zero (at least zero with `allowZero`). */
 export function requirePositive(value: number, where: string, unit: string, allowZero = false): void {
   const ok = Number.isFinite(value) && (allowZero ? value >= 0 : value > 0);

@@ -5,7 +5,7 @@
 import { mkdirSync, readdirSync, realpathSync, rmSync, statSync } from 'node:fs';
 import { open, rename, rm, type FileHandle } from 'node:fs/promises';
 import { basename, dirname, join, resolve } from 'node:path';
-import { UserError } from '../errors.js';
+import { DiskFullError, UserError } from '../errors.js';
 
 let temporaryCounter = 0;
 
@@ -113,7 +113,7 @@ function describeWriteError(error: unknown, path: string): unknown {
   if (code === 'ENOENT') return new UserError(`${path}: cannot write, the folder ${dirname(path)} does not exist`);
   if (code === 'EACCES' || code === 'EPERM' || code === 'EROFS') return new UserError(`${path}: cannot write, permission denied`);
   if (code === 'EISDIR') return new UserError(`${path}: cannot write, a folder has that name`);
-  if (code === 'ENOSPC') return new UserError(`${path}: cannot write, the disk is full`);
+  if (code === 'ENOSPC') return new DiskFullError(path);
   return error;
 }
 

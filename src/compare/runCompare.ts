@@ -3,6 +3,7 @@
  * renders and the dry take, measure what was written, and write `summary.json` and the listening
  * page `index.html` into the output folder. A failed variant is recorded and the rest go on.
  */
+import { rm } from 'node:fs/promises';
 import path from 'node:path';
 import { UserError } from '../errors.js';
 import { readWavFile, type DecodedWav } from '../audio/wavRead.js';
@@ -156,6 +157,33 @@ async function compareInto(options: CompareOptions, { parts, base, takes, finger
   const outcomes: JobOutcome[] = jobs.length
     ? await runRenderJobs(jobs, { threads: options.threads, onProgress: (f) => options.onProgress?.('rendering', f) })
     : [];
+  // Every file this run wrote: on any failure from here on, none of them stays (no page over half the renders).
+  const written = outcomes.flatMap((outcome) => (outcome.ok ? [outcome.result.wavPath, outcome.result.sidecarPath] : []));
+  try {
+    const diskFull = outcomes.find((outcome) => !outcome.ok && outcome.diskFull);
+    if (diskFull && !diskFull.ok) throw new UserError(diskFull.message);
+    return await measureAndWritePage(options, { takes, names, inputs, summaryPath, pagePath, base }, { checked, runnable, jobIndex, outcomes, written });
+  } catch (error) {
+    await Promise.all(written.map((file) => rm(file, { force: true })));
+    throw error;
+  }
+}
+
+interface RenderedRun {
+  checked: CheckedVariant[];
+  runnable: CheckedVariant[];
+  jobIndex: Map<string, number>;
+  outcomes: JobOutcome[];
+  /** Files written so far; this stage adds its own as it writes them. */
+  written: string[];
+}
+
+/** Measure the renders, write the dry takes, level the players, and write summary.json and the page. */
+async function measureAndWritePage(
+  options: CompareOptions,
+  { takes, names, inputs, summaryPath, pagePath, base }: Pick<CompareInputs, 'takes' | 'names' | 'inputs' | 'summaryPath' | 'pagePath' | 'base'>,
+  { checked, runnable, jobIndex, outcomes, written }: RenderedRun,
+): Promise<CompareResult> {
 
   const steps = runnable.length + takes.length * (checked.length + 1);
   let stepsDone = 0;
@@ -204,6 +232,7 @@ async function compareInto(options: CompareOptions, { parts, base, takes, finger
     const dryFile = `${takeName}--dry.wav`;
     assertNotAnInput(path.join(options.outputDir, dryFile), inputs);
     const dryMatch = await writeDryTake(wav, path.join(options.outputDir, dryFile), options.match, options.bits, options.dither);
+    written.push(path.join(options.outputDir, dryFile));
     const entries: CompareEntry[] = [
       await measured({ kind: 'dry', variant: 0, label: 'dry', overrides: [], file: dryFile, thdPercent: null, thdAtTakePeakPercent: null, ...entryFromMatch(dryMatch) }),
     ];
@@ -251,6 +280,7 @@ async function compareInto(options: CompareOptions, { parts, base, takes, finger
     failures,
   };
   await writeFileAtomic(summaryPath, toJsonText(summary));
+  written.push(summaryPath);
   await writeFileAtomic(pagePath, await buildListeningPage(summary, spectra));
   return { summary, summaryPath, pagePath };
 }

@@ -3,13 +3,13 @@
  * index from a shared counter (Atomics, so no thread waits for another to hand out work), render it,
  * report progress and the end of each job, until no jobs are left.
  */
-import { UserError } from '../errors.js';
+import { DiskFullError, UserError } from '../errors.js';
 import { runRenderJob, type RenderJob, type RenderJobResult } from './renderJob.js';
 
 export type JobReply =
   | { kind: 'progress'; index: number; done: number; total: number }
   | { kind: 'done'; index: number; result: RenderJobResult }
-  | { kind: 'failed'; index: number; message: string; userError: boolean };
+  | { kind: 'failed'; index: number; message: string; userError: boolean; diskFull: boolean };
 
 /** A counter the job loops share: one Int32 on a SharedArrayBuffer, the next job's index. */
 export function createJobCounter(): Int32Array {
@@ -29,6 +29,7 @@ export async function runJobsFromCounter(jobs: readonly RenderJob[], counter: In
         index,
         message: error instanceof Error ? error.message : String(error),
         userError: error instanceof UserError,
+        diskFull: error instanceof DiskFullError,
       });
     }
   }

@@ -11,7 +11,7 @@ import { existsSync } from 'node:fs';
 import type { RenderJob, RenderJobResult } from './renderJob.js';
 import { createJobCounter, runJobsFromCounter, type JobReply } from './jobLoop.js';
 
-export type JobOutcome = { ok: true; result: RenderJobResult } | { ok: false; message: string; userError: boolean };
+export type JobOutcome = { ok: true; result: RenderJobResult } | { ok: false; message: string; userError: boolean; diskFull: boolean };
 
 export interface PoolOptions {
   /** Threads to render on, this one included; default: one per core, never more than the jobs. */
@@ -36,7 +36,7 @@ export async function runRenderJobs(jobs: RenderJob[], options: PoolOptions = {}
       fractions[reply.index] = reply.done / reply.total;
     } else {
       outcomes[reply.index] =
-        reply.kind === 'done' ? { ok: true, result: reply.result } : { ok: false, message: reply.message, userError: reply.userError };
+        reply.kind === 'done' ? { ok: true, result: reply.result } : { ok: false, message: reply.message, userError: reply.userError, diskFull: reply.diskFull };
       fractions[reply.index] = 1;
     }
     options.onProgress?.(fractions.reduce((sum, f) => sum + f, 0) / jobs.length);
@@ -62,5 +62,5 @@ export async function runRenderJobs(jobs: RenderJob[], options: PoolOptions = {}
   const workers = Array.from({ length: threads - 1 }, runWorker);
   await Promise.all([...workers, runJobsFromCounter(jobs, counter, handle)]);
   // Only a job whose worker died has no outcome.
-  return outcomes.map((outcome) => outcome ?? { ok: false, message: `worker failed: ${workerFailure || 'it stopped'}`, userError: false });
+  return outcomes.map((outcome) => outcome ?? { ok: false, message: `worker failed: ${workerFailure || 'it stopped'}`, userError: false, diskFull: false });
 }
