@@ -4,7 +4,7 @@
  * worst case (every knob at its maximum) for a sine of `inputPeakVolts` at the jack, mid-band.
  * Stages are treated as buffered from each other, as the renderer does.
  */
-import { CONDUCTION_FRACTION } from '../dsp/conduction.js';
+import { conductionThresholdSiemens } from '../dsp/conduction.js';
 import { diodeString, forwardVoltage, stringConductance } from '../circuit/diode.js';
 import { nearestStandardValues, type ESeriesName } from '../design/eSeries.js';
 import { isPot, resistanceRange } from '../design/resolve.js';
@@ -134,7 +134,7 @@ export function diodeStringCurrent(diode: DiodeParams, count: number, driveVolts
 /** Does a string at `currentAmps` conduct, by the renderer's definition (see dsp/conduction.ts)? */
 function conducts(diode: DiodeParams, count: number, currentAmps: number, againstOhms: number, temperatureC: number): boolean {
   const string = diodeString(diode, count, temperatureC);
-  return string !== null && stringConductance(string, currentAmps) > CONDUCTION_FRACTION / againstOhms;
+  return string !== null && stringConductance(string, currentAmps) > conductionThresholdSiemens(stringConductance(string, 0), 1 / againstOhms);
 }
 
 /** Peak current and conduction of one polarity's string; returns the voltage it holds the node to. */

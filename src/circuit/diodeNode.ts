@@ -15,8 +15,8 @@
  * with Newton outside its range ('table').
  */
 import type { ConductionMeter } from '../dsp/conduction.js';
-import { CONDUCTION_FRACTION } from '../dsp/conduction.js';
-import { voltageAtConductance } from './diode.js';
+import { conductionThresholdSiemens } from '../dsp/conduction.js';
+import { stringConductance, voltageAtConductance, type DiodeString } from './diode.js';
 import { DiodeNodeSolver, type DiodeNetwork } from './diodeNodeSolver.js';
 import { limitInputVolts } from './inputLimit.js';
 import { buildDiodeNodeTable, tableErrorVolts, type DiodeNodeTable } from './diodeNodeTable.js';
@@ -69,14 +69,14 @@ export function designDiodeNode(
   const dcSolver = new DiodeNodeSolver(network, resistiveSiemens);
   const nodeVoltsMax = Math.max(dcSolver.solve(2 * driveAmpsMax), -dcSolver.solve(-2 * driveAmpsMax));
   const pMax = TABLE_DRIVE_MARGIN * driveAmpsMax + 2 * companionSiemens * nodeVoltsMax;
-  const conductionSiemens = CONDUCTION_FRACTION * resistiveSiemens;
+  const conductionVolts = (string: DiodeString): number => voltageAtConductance(string, conductionThresholdSiemens(stringConductance(string, 0), resistiveSiemens));
   return {
     network,
     resistiveSiemens,
     companionSiemens,
     table: buildCheckedTable(network, companionSiemens + resistiveSiemens, pMax, companionSiemens),
-    conductionUpVolts: network.up ? voltageAtConductance(network.up, conductionSiemens) : Infinity,
-    conductionDownVolts: network.down ? voltageAtConductance(network.down, conductionSiemens) : Infinity,
+    conductionUpVolts: network.up ? conductionVolts(network.up) : Infinity,
+    conductionDownVolts: network.down ? conductionVolts(network.down) : Infinity,
   };
 }
 

@@ -102,7 +102,7 @@ export const STAGE_FIELDS: Readonly<Record<StageType, FieldTable>> = {
     pot: required('ohms', 'Tone pot value, ohms'),
     knob: required('knobName', 'Knob that turns the tone pot'),
     taper: optional('taper', 'Tone pot taper (default linear)'),
-    reverse: optional('boolean', 'Pot wired backwards (default false)'),
+    reverse: optional('boolean', 'Pot wired the other way round: clockwise darker (default false: clockwise brighter, the resistance falls as the knob turns up)'),
     cap: required('capacitance', 'Capacitor to the bias point, farads'),
   },
   lowpass: {

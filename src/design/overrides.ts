@@ -3,7 +3,8 @@
  * validation, so an override is checked exactly like the file and its errors name the option:
  *   knob=value            e.g. drive=0.8          sets knobs.drive
  *   supply=V, temperature=C, name=text             set the top-level fields
- *   stageId.field=value   e.g. clip.diode=1n34a    sets a stage field
+ *   stageId.field=value   e.g. clip.diode=1n34a    sets a stage field (a clipper's `diode` sets both
+ *                         sides when it has its own `downDiode`, unless `stageId.downDiode` is set too)
  *   stageId.field.sub=v   e.g. amp.rf.fixed=4k7    sets a field inside a pot object
  *   stageId.elementId.field=v  e.g. drive.rx.value=2k2, drive.d1.part=1n34a  sets a field of an
  *                         element of a circuit stage
@@ -12,6 +13,7 @@ import { UserError } from '../errors.js';
 import { childPath } from './locator.js';
 import { isRawObject, type RawObject } from './rawReaders.js';
 import { suggestionText } from './suggest.js';
+import { DEFAULT_KNOB_POSITION } from './taper.js';
 
 const TOP_LEVEL_SETTINGS = ['supply', 'temperature', 'name'];
 const NUMBER_PATTERN = /^[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?$/;
@@ -70,7 +72,8 @@ function setKnobOrSetting(design: RawObject, key: string, value: unknown, option
   if (!knobs.includes(key)) {
     throw new UserError(`${option}: no knob "${key}" in ${fileName} ${suggestionText(key, [...knobs, ...TOP_LEVEL_SETTINGS])}`);
   }
-  if (!isRawObject(design.knobs)) design.knobs = {};
+  // A design without `knobs` has every knob at mid rotation: keep the others there.
+  if (!isRawObject(design.knobs)) design.knobs = Object.fromEntries(knobs.map((knob) => [knob, DEFAULT_KNOB_POSITION]));
   (design.knobs as RawObject)[key] = value;
   return childPath('knobs', key);
 }
@@ -82,7 +85,7 @@ function forgetUnusedKnobs(design: RawObject, knobs: Set<string>): void {
   for (const knob of knobs) if (!stillUsed.has(knob)) delete design.knobs[knob];
 }
 
-function setStageField(design: RawObject, keys: string[], value: unknown, option: string, fileName: string): string {
+function setStageField(design: RawObject, keys: string[], value: unknown, option: string, fileName: string, setsDownDiode: ReadonlySet<string>): string[] {
   const [stageId, ...fieldKeys] = keys as [string, ...string[]];
   const stages = Array.isArray(design.stages) ? (design.stages as unknown[]) : [];
   const index = stages.findIndex((stage) => isRawObject(stage) && stage.id === stageId);
@@ -113,7 +116,14 @@ function setStageField(design: RawObject, keys: string[], value: unknown, option
   const replacedKnobs = knobNamesIn(target[last]);
   target[last] = value;
   forgetUnusedKnobs(design, replacedKnobs);
-  return childPath(jsonPath, last);
+  const paths = [childPath(jsonPath, last)];
+  // A clipper with its own `downDiode`: `stage.diode` names the part of the clipper, so it changes
+  // both sides, unless the negative side is set on its own.
+  if (target.type === 'clipper' && fieldKeys.length === 1 && last === 'diode' && target.downDiode !== undefined && !setsDownDiode.has(stageId)) {
+    target.downDiode = value;
+    paths.push(childPath(jsonPath, 'downDiode'));
+  }
+  return paths;
 }
 
 /** Apply overrides to a copy of the raw design and remember which JSON path each one set. */
@@ -122,13 +132,14 @@ export function applyOverridesTracked(raw: unknown, overrides: readonly Override
   if (overrides.length === 0) return { raw, overriddenPaths };
   if (!isRawObject(raw)) throw new UserError(`${fileName}: expected a design (a JSON object)`);
   const design = structuredClone(raw);
-  for (const override of overrides) {
-    const { key, valueText, option } = splitOverride(override, fileName);
+  const parsed = overrides.map((override) => splitOverride(override, fileName));
+  const setsDownDiode = new Set(parsed.flatMap(({ key }) => (key.endsWith('.downDiode') ? [key.slice(0, -'.downDiode'.length)] : [])));
+  for (const { key, valueText, option } of parsed) {
     const keys = key.split('.');
     if (keys.some((part) => part === '')) throw new UserError(`${option}: malformed name (expected knob or stageId.field)`);
     const value = toJsonValue(valueText);
-    const jsonPath = keys.length === 1 ? setKnobOrSetting(design, key, value, option, fileName) : setStageField(design, keys, value, option, fileName);
-    overriddenPaths.set(jsonPath, option);
+    const jsonPaths = keys.length === 1 ? [setKnobOrSetting(design, key, value, option, fileName)] : setStageField(design, keys, value, option, fileName, setsDownDiode);
+    for (const jsonPath of jsonPaths) overriddenPaths.set(jsonPath, option);
   }
   return { raw: design, overriddenPaths };
 }

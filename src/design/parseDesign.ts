@@ -13,16 +13,16 @@ import { addPartsFromObject, copyPartsLibrary, type PartsLibrary } from './parts
 import { parseStage } from './parseStages.js';
 import type { StageParseContext } from './stageReaders.js';
 import { readNumberInRange, readObject, readString, rejectUnknownFields, requireField, showRaw } from './rawReaders.js';
-import { suggestionText } from './suggest.js';
+import { closestName, suggestionText } from './suggest.js';
 import type { Design, Resistance, Stage } from './types.js';
 import { parseValue } from './values.js';
+import { DEFAULT_KNOB_POSITION } from './taper.js';
 
 export const SUPPLY_MIN_VOLTS = 3;
 export const SUPPLY_MAX_VOLTS = 48;
 export const TEMPERATURE_MIN_C = -40;
 export const TEMPERATURE_MAX_C = 125;
 export const DEFAULT_TEMPERATURE_C = 25;
-export const DEFAULT_KNOB_POSITION = 0.5;
 
 function readSupplyVolts(value: unknown, where: Locator): number {
   const volts = parseValue(value, where.at('supply'), 'volt');
@@ -50,19 +50,40 @@ function parseStages(value: unknown, ctx: StageParseContext): Stage[] {
   });
 }
 
-/** Knob positions: listed knobs must be used by a pot; used knobs that are not listed sit at 0.5. */
+/**
+ * Knob positions. Without a `knobs` object every knob sits at 0.5; with one, every listed knob must be
+ * used by a pot and every pot's knob must be listed, and a listed knob no pot uses beside a pot knob
+ * that is not listed is reported as the pair (either may be the typo).
+ */
 function parseKnobs(value: unknown, knobUses: ReadonlyMap<string, string>, where: Locator): Record<string, number> {
   // No prototype: knob names such as "constructor" or "__proto__" are plain keys here.
   const knobs: Record<string, number> = Object.create(null) as Record<string, number>;
   const used = [...knobUses.keys()];
-  if (value !== undefined) {
-    for (const [knob, position] of Object.entries(readObject(value, 'knobs', where, 'knob positions'))) {
-      const knobPath = childPath('knobs', knob);
-      if (!knobUses.has(knob)) throw new UserError(`${where.at(knobPath)}: knob "${knob}" is not used by any pot ${suggestionText(knob, used)}`);
-      knobs[knob] = readNumberInRange(position, knobPath, where, 'a knob position', 0, 1);
-    }
+  if (value === undefined) {
+    for (const knob of used) knobs[knob] = DEFAULT_KNOB_POSITION;
+    return knobs;
   }
-  for (const knob of used) knobs[knob] ??= DEFAULT_KNOB_POSITION;
+  const listed = readObject(value, 'knobs', where, 'knob positions');
+  const listedNames = Object.keys(listed);
+  const unlisted = used.filter((knob) => !Object.hasOwn(listed, knob));
+  for (const [knob, position] of Object.entries(listed)) {
+    const knobPath = childPath('knobs', knob);
+    if (!knobUses.has(knob)) {
+      const partner = closestName(knob, unlisted);
+      if (partner !== null) {
+        throw new UserError(
+          `${where.at(knobPath)}: knob "${knob}" is not used by any pot, and ${knobUses.get(partner)} names knob "${partner}", which is not in knobs: is one a typo of the other?`,
+        );
+      }
+      throw new UserError(`${where.at(knobPath)}: knob "${knob}" is not used by any pot ${suggestionText(knob, used)}`);
+    }
+    knobs[knob] = readNumberInRange(position, knobPath, where, 'a knob position', 0, 1);
+  }
+  for (const knob of unlisted) {
+    const close = closestName(knob, listedNames);
+    const hint = close === null ? `; give its position there, e.g. "knobs": { "${knob}": 0.5 }` : ` (did you mean "${close}"?)`;
+    throw new UserError(`${where.at(knobUses.get(knob) as string)}: knob "${knob}" is not in knobs${hint}`);
+  }
   return knobs;
 }
 

@@ -1,6 +1,6 @@
 /**
  * From a design with pots to plain values: each pot becomes its resistance at the design's knob
- * positions, R = fixed + pot * taper(position).
+ * positions, R = fixed + pot * taper(position) (a tone pot: taper(1 - position), brighter clockwise).
  */
 import type { Design, Pot, Resistance, Stage } from './types.js';
 import { potFraction } from './taper.js';
@@ -40,7 +40,9 @@ function resolveStage(stage: Stage<Resistance>, knobs: Readonly<Record<string, n
     case 'clipper':
       return { ...stage, series: ohms(stage.series) };
     case 'tone':
-      return { ...stage, r: ohms(stage.r) };
+      // Wired as tone controls are (common practice): clockwise is brighter, less resistance before
+      // the capacitor; `reverse` wires it the other way round.
+      return { ...stage, r: ohms(isPot(stage.r) ? { ...stage.r, reverse: !stage.r.reverse } : stage.r) };
     case 'lowpass':
     case 'highpass':
       return { ...stage, r: ohms(stage.r) };

@@ -4,6 +4,9 @@
  */
 import type { Taper } from './types.js';
 
+/** Where a knob sits when a design gives no `knobs` at all: mid rotation. */
+export const DEFAULT_KNOB_POSITION = 0.5;
+
 /**
  * Audio (logarithmic) taper modelled as an exponential law through 10 % at mid rotation
  * (common practice: audio pots sit at about 10-15 % of their resistance at mid rotation):

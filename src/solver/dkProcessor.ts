@@ -16,7 +16,7 @@
  * needed (2). Neither path allocates or creates closures per sample.
  */
 import type { Processor } from '../dsp/processor.js';
-import { CONDUCTION_FRACTION, type ConductionMeter } from '../dsp/conduction.js';
+import { conductionThresholdSiemens, type ConductionMeter } from '../dsp/conduction.js';
 import { factorLu, solveLu } from './denseLu.js';
 import { DeviceKind, PORT_COUNT } from '../netlist/deviceKind.js';
 import { evaluateDevice, limitDeviceStep } from './devices.js';
@@ -33,13 +33,6 @@ export const HOMOTOPY_STEPS = 8;
 export const HOMOTOPY_STEPS_FINE = 128;
 /** A best iterate whose scaled residual exceeds this is not used: the block holds instead. */
 const HOLD_RESIDUAL = 1e-4;
-
-/**
- * A diode string conducts when its incremental conductance exceeds this share of the conductance the
- * rest of the circuit shows its port (1 / |F_kk|): the same definition as the named stages'
- * (dsp/conduction.ts).
- */
-const CONDUCTION_SHARE = CONDUCTION_FRACTION;
 
 export class DkProcessor implements Processor, ConductionMeter, KernelHost {
   readonly latencySamples = 0;
@@ -109,9 +102,12 @@ export class DkProcessor implements Processor, ConductionMeter, KernelHost {
     });
     const diodes = this.kinds.flatMap((kind, d) => (kind === DeviceKind.Junction ? [d] : []));
     this.diodeJac = Int32Array.from(diodes, (d) => this.jacStart[d]);
+    // The named stages' definition (dsp/conduction.ts): the string's zero-bias conductance Is / (m n Vt)
+    // plus a share of the conductance the rest of the circuit shows its port (1 / |F_kk|).
     this.diodeThreshold = Float64Array.from(diodes, (d) => {
       const port = this.devicePort[d];
-      return CONDUCTION_SHARE / Math.abs(model.f[port * model.ports + port]);
+      const params = this.paramStart[d];
+      return conductionThresholdSiemens(this.params[params] / this.params[params + 1], 1 / Math.abs(model.f[port * model.ports + port]));
     });
     this.blockJacEnd = Int32Array.from({ length: model.blockStart.length - 1 }, (_, j) => {
       const end = this.blockDevice[j + 1];

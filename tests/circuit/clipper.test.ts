@@ -125,6 +125,20 @@ describe('conduction meter', () => {
   });
 });
 
+describe('conduction meter, leaky germanium pair', () => {
+  test('a 1N34A pair at rest already shunts signal, but counts as conducting only once it clips', () => {
+    // Its zero-bias conductance Is / (n Vt) = 2.6 uA / 41 mV = 63 uS is above a tenth of 1 / 2.2k
+    // (45 uS): measured from zero instead of from that rest conductance, every sample would count.
+    const germanium = clipperSpec({ diode: D1N34A, downDiode: D1N34A });
+    const clipper = createClipper(designClipper(germanium, CTX));
+    clipper.process(sine(0.01, 1000, CTX.sampleRate, 3840));
+    expect(clipper.conductingSamples).toBe(0);
+    clipper.reset();
+    clipper.process(sine(3, 1000, CTX.sampleRate, 3840));
+    expect(clipper.conductingSamples / clipper.countedSamples).toBeGreaterThan(0.7);
+  });
+});
+
 describe('any valid design', () => {
   test('finite output, bounded by the input, table agreeing with Newton (property test, fixed seed)', () => {
     // Passivity: a resistor-diode-capacitor node cannot exceed the largest input magnitude.

@@ -148,7 +148,7 @@ const BAD_DESIGNS: { name: string; text: () => string; problem: RegExp[] }[] = [
   {
     name: 'unknown-knob.json',
     text: () => designWith((d) => (d.knobs = { drvie: 0.5 })),
-    problem: [/knobs\.drvie/, /not used by any pot/, /did you mean "drive"/],
+    problem: [/knobs\.drvie/, /not used by any pot/, /stages\[\d\]\.rf\.knob names knob "drive"/, /typo/],
   },
   {
     name: 'zero-r.json',

@@ -23,6 +23,18 @@ describe('--set overrides', () => {
     expect((design.stages[1] as GainStage).rf).toMatchObject({ fixedOhms: 4700, potOhms: 500e3 });
   });
 
+  test('clip.diode on a clipper with its own downDiode changes both sides, unless clip.downDiode is set too', () => {
+    const asymmetric = text.replace('"diode": "1n4148"', '"diode": "1n4148", "downDiode": "1n34a"');
+    expect(asymmetric).not.toBe(text);
+    const parseAsymmetric = (...overrides: string[]) => parseDesignText(asymmetric, FILE, parts, overrides).stages[2] as ClipperStage;
+    const both = parseAsymmetric('clip.diode=1n5817');
+    expect([both.diode.name, both.downDiode?.name]).toEqual(['1n5817', '1n5817']);
+    for (const order of [['clip.diode=1n5817', 'clip.downDiode=1n4148'], ['clip.downDiode=1n4148', 'clip.diode=1n5817']]) {
+      const own = parseAsymmetric(...order);
+      expect([own.diode.name, own.downDiode?.name]).toEqual(['1n5817', '1n4148']);
+    }
+  });
+
   test('replacing a pot by a fixed value drops its knob', () => {
     const design = parseWith('amp.rf=22k');
     expect((design.stages[1] as GainStage).rf).toBe(22000);

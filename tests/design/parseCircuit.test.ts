@@ -8,8 +8,9 @@ import type { CircuitStage } from '../../src/design/types.js';
 
 const parts = loadPartsLibrary();
 
-function design(elements: unknown[], extra: Record<string, unknown> = {}, knobs: Record<string, number> = {}): string {
-  return JSON.stringify({ supply: 9, knobs, stages: [{ id: 'stack', type: 'circuit', input: 'in', output: 'out', elements, ...extra }] });
+/** A design of one circuit stage; without `knobs`, every knob at mid rotation. */
+function design(elements: unknown[], extra: Record<string, unknown> = {}, knobs?: Record<string, number>): string {
+  return JSON.stringify({ supply: 9, ...(knobs ? { knobs } : {}), stages: [{ id: 'stack', type: 'circuit', input: 'in', output: 'out', elements, ...extra }] });
 }
 
 const parse = (text: string, overrides: string[] = []): CircuitStage => parseDesignText(text, 'd.json', parts, overrides).stages[0] as CircuitStage;
@@ -81,7 +82,7 @@ describe('circuit stages in design files', () => {
 
   test('a knob that no pot uses is refused, a pot knob is known', () => {
     const elements = [{ id: 'r1', type: 'resistor', value: '1k', nodes: ['in', 'out'] }, { id: 'p1', type: 'pot', value: '10k', knob: 'level', nodes: ['out', 'gnd', 'gnd'] }];
-    expect(errorOf(design(elements, {}, { levle: 0.2 }))).toMatch(/knobs\.levle: knob "levle" is not used by any pot.*did you mean "level"/);
+    expect(errorOf(design(elements, {}, { levle: 0.2 }))).toMatch(/knobs\.levle: knob "levle" is not used by any pot, and stages\[0\]\.elements\[1\]\.knob names knob "level"/);
     expect(parseDesignText(design(elements, {}, { level: 0.2 }), 'd.json', parts).knobs.level).toBe(0.2);
   });
 

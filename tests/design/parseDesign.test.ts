@@ -115,6 +115,30 @@ describe('defaults', () => {
   });
 });
 
+describe('knobs and the pots that use them', () => {
+  test('a listed knob no pot uses beside a pot knob that is not listed: both are named, either may be the typo', () => {
+    const typo = withStage(1, { rf: { fixed: '10k', pot: '500k', knob: 'dirve' } });
+    expect(errorOf(() => parse(typo))).toBe(
+      'design.json: knobs.drive: knob "drive" is not used by any pot, and stages[1].rf.knob names knob "dirve", which is not in knobs: is one a typo of the other?',
+    );
+  });
+
+  test('a pot on a knob the knobs object does not list is refused at the pot', () => {
+    const undefinedKnob = withStage(1, { rf: { fixed: '10k', pot: '500k', knob: 'tone' } });
+    expect(errorOf(() => parse({ ...undefinedKnob, knobs: {} }))).toBe(
+      'design.json: stages[1].rf.knob: knob "tone" is not in knobs; give its position there, e.g. "knobs": { "tone": 0.5 }',
+    );
+  });
+
+  test('without a knobs object every knob sits at 0.5, and --set of one knob keeps the others there', () => {
+    const twoKnobs = baseDesign();
+    delete twoKnobs.knobs;
+    (twoKnobs.stages as unknown[]).push({ id: 'tone', type: 'tone', fixed: '1k', pot: '20k', knob: 'tone', cap: '22n' });
+    expect({ ...parse(twoKnobs).knobs }).toEqual({ drive: 0.5, tone: 0.5 });
+    expect({ ...parse(twoKnobs, ['drive=0.9']).knobs }).toEqual({ drive: 0.9, tone: 0.5 });
+  });
+});
+
 describe('errors name path, value and expectation', () => {
   test('JSON syntax errors give line and column', () => {
     const text = '{\n  "supply": 9,\n  "stages": [\n    { "id": "in" "type": "input" }\n  ]\n}';
@@ -171,7 +195,10 @@ describe('errors name path, value and expectation', () => {
     );
     const design = baseDesign();
     design.knobs = { drvie: 0.5 };
-    expect(errorOf(() => parse(design))).toBe('design.json: knobs.drvie: knob "drvie" is not used by any pot (did you mean "drive"?)');
+    // Either name may be the typo: both are named (a knob no pot uses, beside a pot knob not listed).
+    expect(errorOf(() => parse(design))).toBe(
+      'design.json: knobs.drvie: knob "drvie" is not used by any pot, and stages[1].rf.knob names knob "drive", which is not in knobs: is one a typo of the other?',
+    );
     const topLevel = { ...baseDesign(), suply: 9 };
     expect(errorOf(() => parse(topLevel))).toBe('design.json: suply: unknown field "suply" in the design (did you mean "supply"?)');
     expect(errorOf(() => parse(withStage(1, { rf: { fixed: '10k', pot: '500k', knob: 'drive', taper: 'log' } })))).toMatch(
