@@ -5,7 +5,7 @@
  * Stages are treated as buffered from each other, as the renderer does.
  */
 import { conductionThresholdSiemens } from '../dsp/conduction.js';
-import { diodeString, forwardVoltage, stringConductance } from '../circuit/diode.js';
+import { diodeString, forwardVoltage, stringConductance, voltageAtConductance } from '../circuit/diode.js';
 import { nearestStandardValues, type ESeriesName } from '../design/eSeries.js';
 import { isPot, resistanceRange } from '../design/resolve.js';
 import type { ClipperStage, Design, DiodeParams, GainStage, OpampParams, Pot, Resistance, Stage } from '../design/types.js';
@@ -231,7 +231,7 @@ function feedbackDiodeOutput(out: CheckCollector, stage: GainStage, diode: Diode
   return { up: sideVolts('positive', inputPeak.up, stage.feedbackUp), down: sideVolts('negative', inputPeak.down, stage.feedbackDown) };
 }
 
-function checkGainStage(out: CheckCollector, stage: GainStage, design: Design, inputPeak: Peaks, diodesFollow: boolean): Peaks {
+function checkGainStage(out: CheckCollector, stage: GainStage, design: Design, inputPeak: Peaks, nextClipper: ClipperLevel | null): Peaks {
   const { opamp } = stage;
   const gain = gainRange(stage);
   const knobs = knobNote(stage.rf, stage.rg);
@@ -280,10 +280,15 @@ function checkGainStage(out: CheckCollector, stage: GainStage, design: Design, i
     stage.feedbackDiode !== null && stage.rg !== null
       ? feedbackDiodeOutput(out, stage, stage.feedbackDiode, inputPeak, design.temperatureC)
       : { up: inputPeak.up * gain.max, down: inputPeak.down * gain.max };
-  const clipsAtRails = demand.up > swing.up || demand.down > swing.down;
-  if (clipsAtRails && (diodesFollow || stage.feedbackDiode !== null) && stage.railClipping !== true) {
-    const where = stage.feedbackDiode !== null ? 'its feedback diodes' : 'the diodes after it';
-    out.warn('rails-before-diodes', stage.id, `at ${voltsText(inputPeak.up)} in and full gain the output would need ${voltsText(Math.max(demand.up, demand.down))} peak but the ${opamp.name} swings only +${voltsText(swing.up)}/-${voltsText(swing.down)}: it clips at its rails before ${where} do`);
+  const reachesRail = { up: demand.up > swing.up, down: demand.down > swing.down };
+  if (stage.railClipping !== true) {
+    if (stage.feedbackDiode !== null && (reachesRail.up || reachesRail.down)) {
+      // The output the feedback diodes would hold is beyond the swing: the rails limit it first.
+      out.warn('rails-before-diodes', stage.id, `at ${voltsText(inputPeak.up)} into the stage and full gain its feedback diodes would hold the output at ${voltsText(Math.max(demand.up, demand.down))} peak, beyond the ${opamp.name}'s swing of +${voltsText(swing.up)}/-${voltsText(swing.down)}: it clips at its rails before its diodes do`);
+    } else if (nextClipper !== null && ((reachesRail.up && swing.up < nextClipper.volts.up) || (reachesRail.down && swing.down < nextClipper.volts.down))) {
+      // The diodes after it start clipping only above the swing: the rails are reached first.
+      out.warn('rails-before-diodes', stage.id, `the ${opamp.name} swings only +${voltsText(swing.up)}/-${voltsText(swing.down)}, below the +${voltsText(nextClipper.volts.up)}/-${voltsText(nextClipper.volts.down)} at which the diodes of stage "${nextClipper.id}" start clipping: at ${voltsText(inputPeak.up)} into the stage and full gain it clips at its rails before they do`);
+    }
   }
   return { up: Math.min(demand.up, swing.up), down: Math.min(demand.down, swing.down) };
 }
@@ -350,7 +355,7 @@ function checkStandardValues(out: CheckCollector, stage: Stage): void {
   }
 }
 
-function checkStage(out: CheckCollector, stage: Stage, design: Design, peak: Peaks, diodesFollow: boolean): Peaks {
+function checkStage(out: CheckCollector, stage: Stage, design: Design, peak: Peaks, nextClipper: ClipperLevel | null): Peaks {
   checkStandardValues(out, stage);
   switch (stage.type) {
     case 'circuit': {
@@ -368,7 +373,7 @@ function checkStage(out: CheckCollector, stage: Stage, design: Design, peak: Pea
       return { up: peak.up * passband, down: peak.down * passband };
     }
     case 'gain':
-      return checkGainStage(out, stage, design, peak, diodesFollow);
+      return checkGainStage(out, stage, design, peak, nextClipper);
     case 'clipper':
       return checkClipper(out, stage, design, peak);
     case 'tone':
@@ -397,6 +402,30 @@ function hasDiodes(stage: Stage): boolean {
   return (stage.type === 'clipper' && stage.up + stage.down > 0) || (stage.type === 'gain' && stage.feedbackDiode !== null);
 }
 
+/** A clipper stage and the node voltage each way at which its diodes start clipping. */
+interface ClipperLevel {
+  id: string;
+  volts: Peaks;
+}
+
+/**
+ * Where the next stage with diodes after `index` starts clipping, when it is a clipper fed through a
+ * series resistor: the node voltage at which a string's conductance passes the renderer's conduction
+ * threshold (dsp/conduction.ts) against that resistor, at its lowest value (the highest such voltage).
+ * Null for any other next diode stage (its diodes sit behind gain of their own) or none.
+ */
+function nextClipperLevel(design: Design, index: number): ClipperLevel | null {
+  const next = design.stages.slice(index + 1).find(hasDiodes);
+  if (next === undefined || next.type !== 'clipper') return null;
+  const seriesOhms = resistanceRange(next.series).minOhms;
+  if (!(seriesOhms > 0)) return null;
+  const level = (diode: DiodeParams, count: number): number => {
+    const string = diodeString(diode, count, design.temperatureC);
+    return string === null ? Infinity : voltageAtConductance(string, conductionThresholdSiemens(stringConductance(string, 0), 1 / seriesOhms));
+  };
+  return { id: next.id, volts: { up: level(next.diode, next.up), down: level(next.downDiode, next.down) } };
+}
+
 /** The design's facts and warnings; see the module comment for the assumptions. */
 export function checkDesign(design: Design<Resistance>, options: CheckOptions): CheckResult {
   const out = new CheckCollector();
@@ -406,8 +435,7 @@ export function checkDesign(design: Design<Resistance>, options: CheckOptions): 
   if (first !== undefined) checkInputImpedance(out, first, design);
   let peak: Peaks = { up: options.inputPeakVolts, down: options.inputPeakVolts };
   design.stages.forEach((stage, index) => {
-    const diodesFollow = design.stages.slice(index + 1).some(hasDiodes);
-    peak = checkStage(out, stage, design, peak, diodesFollow);
+    peak = checkStage(out, stage, design, peak, nextClipperLevel(design, index));
   });
   for (const caution of CAUTIONS) out.fact({ code: 'caution', stage: 'design', label: 'caution', text: caution });
   return { facts: out.facts, warnings: out.warnings, operatingPoint: out.operatingPoint };

@@ -15,6 +15,7 @@ import {
   predictResponse,
   responseFrequencies,
   responseProbeVolts,
+  unwrapPhase,
   type ResponseDisagreement,
   type ResponsePoint,
 } from './response.js';
@@ -96,11 +97,11 @@ export function measureDesign(design: Design<number>, options: MeasureOptions): 
   });
 
   const frequencies = responseFrequencies(sampleRate, TONE_WINDOW, RESPONSE_POINTS);
-  const response = predictResponse(design, sampleRate, oversample, frequencies);
-  const responseMeasured = measureResponse(
-    chain,
-    { sampleRate, windowLength: TONE_WINDOW, amplitudeVolts: responseProbeVolts(response), settleSeconds: settle },
-    frequencies,
+  // Phase unwrapped along frequency; the measurement on its prediction's branch.
+  const response = unwrapPhase(predictResponse(design, sampleRate, oversample, frequencies));
+  const responseMeasured = unwrapPhase(
+    measureResponse(chain, { sampleRate, windowLength: TONE_WINDOW, amplitudeVolts: responseProbeVolts(response), settleSeconds: settle }, frequencies),
+    response,
   );
   const [gainPoint] = predictResponse(design, sampleRate, oversample, [tone.fundamentalHz]);
 

@@ -30,12 +30,29 @@ export interface ResponsePoint {
   hz: number;
   /** null where the output is silent (e.g. a volume knob at 0). */
   db: number | null;
+  /** Phase in degrees: wrapped to (-180, 180] per point; `unwrapPhase` makes a curve continuous. */
   deg: number;
 }
 
 function wrapDegrees(deg: number): number {
   const wrapped = ((deg + 180) % 360 + 360) % 360 - 180;
   return wrapped === -180 ? 180 : wrapped;
+}
+
+/**
+ * Phase unwrapped along frequency: each point moved by whole turns so it is within 180 degrees of the
+ * one before (the usual unwrapping, e.g. numpy.unwrap), starting from the lowest frequency's wrapped
+ * value; with `reference` (same frequencies), each point instead takes the turn closest to the
+ * reference's, so a measurement follows its prediction's branch.
+ */
+export function unwrapPhase(points: readonly ResponsePoint[], reference?: readonly ResponsePoint[]): ResponsePoint[] {
+  let previous: number | null = null;
+  return points.map((point, i) => {
+    const anchor = reference ? reference[i].deg : previous;
+    const deg = anchor === null ? point.deg : anchor + wrapDegrees(point.deg - anchor);
+    previous = deg;
+    return { ...point, deg };
+  });
 }
 
 /** Frequencies from 20 Hz to 20 kHz, `perOctave` per octave, rounded to the bins of the window. */

@@ -56,14 +56,37 @@ function withoutCapacitors(stage: Stage<number>): Stage<number> {
   return stage;
 }
 
+/** The knee may sit anywhere from this fraction of the sweep's range up: log-spaced points reach down to it. */
+const SMALLEST_LEVEL_FRACTION = 1e-4;
+/** Share of the points spread evenly over the range; the rest are log-spaced each side of zero. */
+const EVEN_SHARE = 0.4;
+
+/**
+ * Input levels from -maxVolts to maxVolts, ascending, about `points` of them: an even grid (the
+ * curve's overall shape) merged with log-spaced levels each side of zero (the knee of a high-gain
+ * design sits within a few millivolts of zero, where an even grid has one point or none).
+ */
+export function transferLevels(maxVolts: number, points: number): number[] {
+  const even = Math.max(3, Math.round(points * EVEN_SHARE) | 1);
+  const perSide = Math.max(2, Math.floor((points - even) / 2));
+  const levels = new Set<number>(Array.from({ length: even }, (_, i) => -maxVolts + (2 * maxVolts * i) / (even - 1)));
+  // The top log level is maxVolts itself, on the even grid already (and off by rounding here).
+  for (const level of logSpaced(maxVolts * SMALLEST_LEVEL_FRACTION, maxVolts, perSide + 1).slice(0, -1)) {
+    levels.add(level);
+    levels.add(-level);
+  }
+  return [...levels].sort((a, b) => a - b);
+}
+
+/** About `points` (vin, vout) pairs from -maxVolts to maxVolts, dense near zero (`transferLevels`). */
 export function staticTransferCurve(design: Design<number>, maxVolts: number, points: number): TransferPoint[] {
   const ctx: CircuitContext = { sampleRate: RAMP_RATE, supplyVolts: design.supplyVolts, temperatureC: design.temperatureC };
-  const vin = Array.from({ length: points }, (_, i) => -maxVolts + (2 * maxVolts * i) / (points - 1));
-  const signal = new Float64Array(points * HOLD_SAMPLES);
+  const vin = transferLevels(maxVolts, points);
+  const signal = new Float64Array(vin.length * HOLD_SAMPLES);
   vin.forEach((v, i) => signal.fill(v, i * HOLD_SAMPLES, (i + 1) * HOLD_SAMPLES));
   for (const stage of design.stages) {
     if (stage.type === 'circuit') {
-      traceCircuitStage(stage, ctx, design.knobs, signal, points);
+      traceCircuitStage(stage, ctx, design.knobs, signal, vin.length);
     } else if (isNonlinearStage(stage)) {
       createStageProcessor(withoutCapacitors(stage), ctx, design.knobs).process(signal);
     } else {

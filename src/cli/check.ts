@@ -1,5 +1,5 @@
 /**
- * `clipbench check <design.json> [--json] [--input-peak V] [--parts file]`: the design's electrical
+ * `clipbench check <design.json> [--json] [--input-peak V] [--set key=value] [--parts file]`: the design's electrical
  * facts and warnings before anyone builds it. Exits 0 even with warnings; only a design that cannot
  * be read is an error.
  */
@@ -9,10 +9,12 @@ import { readDesignFile } from '../design/parseDesign.js';
 import { loadPartsLibrary } from '../design/parts.js';
 import { parseValue } from '../design/values.js';
 import { formatRows } from '../report/table.js';
+import { collect } from './options.js';
 
 interface CheckFlags {
   json?: boolean;
   inputPeak: string;
+  set?: string[];
   parts?: string;
 }
 
@@ -37,10 +39,11 @@ export function registerCheckCommand(program: Command): void {
     .argument('<design>', 'design file (JSON)')
     .option('--json', 'print JSON: { "facts": [...], "warnings": [{ "code", "stage", "message" }], "operatingPoint": { "<stageId>": { "<node>": volts } } }')
     .option('--input-peak <volts>', 'worst input peak at the jack, volts', '1')
+    .option('--set <key=value>', 'override a knob or stage field (as render --set); repeatable', collect)
     .option('--parts <file>', 'extra parts library (JSON) to merge')
     .action(async (designPath: string, flags: CheckFlags) => {
       const inputPeakVolts = parseValue(flags.inputPeak, '--input-peak', 'volt');
-      const design = await readDesignFile(designPath, loadPartsLibrary(flags.parts));
+      const design = await readDesignFile(designPath, loadPartsLibrary(flags.parts), flags.set ?? []);
       const result = checkDesign(design, { inputPeakVolts });
       if (flags.json) process.stdout.write(`${JSON.stringify({ facts: result.facts, warnings: result.warnings, operatingPoint: result.operatingPoint }, null, 2)}\n`);
       else process.stdout.write(formatCheckReport(design.name, result));

@@ -7,7 +7,7 @@
 import { createHash } from 'node:crypto';
 import type { SpectrumPoint } from '../analysis/analyzeTake.js';
 import { escapeHtml } from '../report/html.js';
-import { renderLinePlotSvg } from '../report/plots.js';
+import { renderLinePlotSvg, FREQUENCY_AXIS, SPECTRUM_LEVEL_AXIS } from '../report/plots.js';
 import { formatValue } from '../report/table.js';
 import { listeningPageScript } from './pageScript.js';
 import type { CompareEntry, CompareSummary, CompareTake } from './summary.js';
@@ -87,8 +87,8 @@ async function spectrumFigure(take: CompareTake, spectra: ReadonlyMap<string, re
   const top = Math.ceil(Math.max(...series.flatMap((s) => s.points.map((p) => p.y))) / 10) * 10;
   const svg = await renderLinePlotSvg({
     title: 'Long-term average spectra (Welch)',
-    xLabel: 'frequency, Hz',
-    yLabel: 'level, dB re a full-scale sine',
+    xLabel: FREQUENCY_AXIS,
+    yLabel: SPECTRUM_LEVEL_AXIS,
     xScale: 'log',
     yDomain: [top - SPECTRUM_RANGE_DB, top],
     widthPx: 760,

@@ -2,7 +2,7 @@
 import { assertNotAnInput } from '../audio/atomicWrite.js';
 import type { AnalyzeReport } from '../analysis/analyzeTake.js';
 import { buildHtmlReport, type HtmlSection } from './html.js';
-import { renderLinePlotSvg, renderStemPlotSvg } from './plots.js';
+import { renderLinePlotSvg, renderStemPlotSvg, FREQUENCY_AXIS, SPECTRUM_LEVEL_AXIS } from './plots.js';
 import { formatRows, formatValue } from './table.js';
 import { svgPathBeside, writeHtmlReport, writeJsonReport, type NamedSvg } from './writeReports.js';
 
@@ -62,8 +62,8 @@ export async function renderAnalyzePlots(report: AnalyzeReport): Promise<NamedSv
       name: 'spectrum',
       svg: await renderLinePlotSvg({
         title: `Long-term average spectrum: ${report.file}`,
-        xLabel: 'frequency (Hz)',
-        yLabel: 'level per bin (dB re full-scale sine)',
+        xLabel: FREQUENCY_AXIS,
+        yLabel: SPECTRUM_LEVEL_AXIS,
         xScale: 'log',
         yDomain: [topDb - SPECTRUM_RANGE_DB, topDb],
         series: [{ name: 'spectrum', points: report.spectrum.map((p) => ({ x: p.hz, y: p.db })) }],

@@ -3,7 +3,7 @@ import type { MeasureReport } from '../analysis/measureDesign.js';
 import { PREDICTION_BASIS } from '../analysis/response.js';
 import { formatSignificant, formatValue } from './table.js';
 import { buildHtmlReport, type HtmlSection } from './html.js';
-import { renderLinePlotSvg, renderStemPlotSvg, type PlotRule } from './plots.js';
+import { renderLinePlotSvg, renderStemPlotSvg, type PlotRule, FREQUENCY_AXIS } from './plots.js';
 import { writeHtmlReport, writeJsonReport, type NamedSvg } from './writeReports.js';
 
 /** The caller has refused output paths that name an input (before measuring). */
@@ -21,7 +21,7 @@ async function measurePlots(report: MeasureReport): Promise<NamedSvg[]> {
       name: 'harmonics',
       svg: await renderStemPlotSvg({
         title: `Harmonics at ${report.freqHz.toFixed(0)} Hz, ${report.levelVolts} V peak in`,
-        xLabel: 'frequency (Hz)',
+        xLabel: FREQUENCY_AXIS,
         yLabel: 'level (dBc)',
         baseline: -140,
         yDomain: [-140, 0],
@@ -44,7 +44,7 @@ async function measurePlots(report: MeasureReport): Promise<NamedSvg[]> {
       name: 'response',
       svg: await renderLinePlotSvg({
         title: 'Small-signal frequency response (magnitude)',
-        xLabel: 'frequency (Hz)',
+        xLabel: FREQUENCY_AXIS,
         yLabel: 'gain (dB)',
         xScale: 'log',
         series: [
@@ -57,7 +57,7 @@ async function measurePlots(report: MeasureReport): Promise<NamedSvg[]> {
       name: 'phase',
       svg: await renderLinePlotSvg({
         title: 'Small-signal frequency response (phase)',
-        xLabel: 'frequency (Hz)',
+        xLabel: FREQUENCY_AXIS,
         yLabel: 'phase (degrees)',
         xScale: 'log',
         series: [

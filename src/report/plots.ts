@@ -50,6 +50,14 @@ export interface StemPlotSpec extends PlotFrame {
 const DEFAULT_WIDTH_PX = 640;
 const DEFAULT_HEIGHT_PX = 320;
 const FONT = 'Helvetica, Arial, sans-serif';
+/** Legend labels are shown whole up to this width (vega's default cuts them at 160 px). */
+const LEGEND_LABEL_LIMIT_PX = 1000;
+/** Dash patterns for series 21-40, 41-60, ... (solid for the first 20). */
+const DASH_PATTERNS: readonly (readonly number[])[] = [[1, 0], [6, 3], [2, 2], [8, 3, 2, 3]];
+
+/** Axis titles every page uses. */
+export const FREQUENCY_AXIS = 'frequency (Hz)';
+export const SPECTRUM_LEVEL_AXIS = 'level (dB re full-scale sine)';
 
 function drawable(point: PlotPoint, frame: PlotFrame): boolean {
   if (!Number.isFinite(point.x) || !Number.isFinite(point.y)) return false;
@@ -101,13 +109,20 @@ export async function renderLinePlotSvg(spec: LinePlotSpec): Promise<string> {
   const x = axisEncoding('x', spec.xLabel, spec.xScale);
   const y = axisEncoding('y', spec.yLabel, spec.yScale, spec.yDomain);
   const showLegend = spec.series.length > 1;
+  // Series keep their given order in the legend (not sorted as text: "10." after "9."), get distinct
+  // colours (20 of them past 10 series), a dash pattern past 20, full labels, and columns across the width.
+  const names = spec.series.map((series) => series.name);
+  const legend = showLegend ? { orient: 'bottom' as const, columns: names.length > 4 ? 3 : names.length, labelLimit: LEGEND_LABEL_LIMIT_PX, symbolType: 'stroke' as const } : null;
   const lineLayer = {
     data: { values },
     mark: { type: 'line' as const, strokeWidth: 1.5, clip: true },
     encoding: {
       x,
       y,
-      color: { field: 'series', type: 'nominal' as const, title: null, legend: showLegend ? { orient: 'bottom' as const } : null },
+      color: { field: 'series', type: 'nominal' as const, title: null, sort: names, scale: { domain: names, scheme: names.length > 10 ? 'category20' : 'tableau10' }, legend },
+      ...(names.length > 20
+        ? { strokeDash: { field: 'series', type: 'nominal' as const, sort: names, scale: { domain: names, range: names.map((_, i) => DASH_PATTERNS[Math.floor(i / 20) % DASH_PATTERNS.length]) }, legend: null } }
+        : {}),
     },
   };
   const ruleLayers = rules.length

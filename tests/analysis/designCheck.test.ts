@@ -69,14 +69,34 @@ describe('night-drive facts against hand calculations', async () => {
     expectClose(factOf(result, 'clip', 'diode-peak-current').value!, expected, { rtol: 1e-6 });
   });
 
-  test('rails clip before the diodes at 1 V and full drive (109 x 1 V >> 3 V); cautions are present', () => {
-    expect(warningCodes(result)).toEqual(['amp:rails-before-diodes']);
+  test('no rails-before-diodes although 109 x 1 V passes the 3 V swing: the 1N4148 clipper starts clipping near 0.5 V, long before; cautions are present', () => {
+    expect(warningCodes(result)).toEqual([]);
     expect(result.facts.filter((f) => f.code === 'caution').map((f) => f.text).join(' ')).toMatch(/low volume.*mains.*ventilate/is);
   });
 
   test('JSON output holds only finite numbers', () => {
     const text = JSON.stringify(result);
     expect(text).not.toMatch(/null|NaN|Infinity/);
+  });
+});
+
+describe('rails-before-diodes, the right way round', () => {
+  // Three red LEDs in series each way start clipping near 3 x 1.14 V (where their conductance reaches
+  // a tenth of 1 / 2k2; Shockley with the library's LED card), above the 3 V the TL072 swings each way
+  // on 9 V (4.5 V - 1.5 V headroom, datasheet): the rails come first.
+  const ledString = ['clip.diode=led-red', 'clip.up=3', 'clip.down=3'];
+  const railWarnings = (result: CheckResult): string[] => warningCodes(result).filter((code) => code.endsWith(':rails-before-diodes'));
+
+  test('an LED clipper that needs more than the op-amp swings: the rails come first, said that way', async () => {
+    const result = checkDesign(await readDesignFile('fixtures/designs/night-drive.json', parts, ledString), { inputPeakVolts: 1 });
+    expect(railWarnings(result)).toEqual(['amp:rails-before-diodes']);
+    const message = result.warnings.find((w) => w.code === 'rails-before-diodes')!.message;
+    expect(message).toMatch(/swings only \+3 V\/-3 V, below the \+3\.\d+ V\/-3\.\d+ V at which the diodes of stage "clip" start clipping: .* it clips at its rails before they do/);
+  });
+
+  test('an input too quiet to reach the rails gives no warning, whatever the diodes', async () => {
+    const result = checkDesign(await readDesignFile('fixtures/designs/night-drive.json', parts, ledString), { inputPeakVolts: 0.01 });
+    expect(railWarnings(result)).toEqual([]);
   });
 });
 

@@ -3,7 +3,7 @@ import type { Design, Stage } from '../../src/design/types.js';
 import { buildChain } from '../../src/circuit/chain.js';
 import { coherentBin, createToneAnalyzer } from '../../src/analysis/coherentTone.js';
 import { findOnset } from '../../src/analysis/levelSweep.js';
-import { measureResponse, predictResponse, responseFrequencies } from '../../src/analysis/response.js';
+import { measureResponse, predictResponse, responseFrequencies, unwrapPhase } from '../../src/analysis/response.js';
 import { staticTransferCurve } from '../../src/analysis/transferCurve.js';
 import { measureAliasing } from '../../src/analysis/aliasing.js';
 import { settleSeconds } from '../../src/analysis/toneRun.js';
@@ -120,6 +120,23 @@ describe('static transfer curve', () => {
   });
 });
 
+describe('transfer curve sampling', () => {
+  it('samples the knee of a high-gain stage densely: points all along its bend, not one step across it', () => {
+    // Ideal non-inverting gain 1 + 999k/1k = 1000 into the rails (+-4.5 V round the bias): the output
+    // leaves the linear law within +-4.5 mV of input, 1/444 of a 2 V sweep, which an even grid of 201
+    // levels (20 mV apart) steps straight over.
+    const d = design([{ id: 'amp', type: 'gain', opamp: IDEAL_OPAMP, rf: 999000, rg: 1000, cg: null, cf: null, feedbackDiode: null, feedbackUp: 0, feedbackDown: 0 }]);
+    const curve = staticTransferCurve(d, 2, 201);
+    const inBend = curve.filter(({ vout }) => Math.abs(vout) > 0.45 && Math.abs(vout) < 4.4);
+    expect(inBend.length).toBeGreaterThanOrEqual(10);
+    for (const { vin, vout } of curve) if (Math.abs(vin) < 4e-3) expectClose(vout, 1000 * vin, { rtol: 1e-3, atol: 1e-6 });
+    const levels = curve.map((p) => p.vin);
+    expect(levels[0]).toBe(-2);
+    expect(levels[levels.length - 1]).toBe(2);
+    for (let i = 1; i < levels.length; i++) expect(levels[i]).toBeGreaterThan(levels[i - 1]);
+  });
+});
+
 describe('aliasing', () => {
   it('falls as the oversampling factor rises', () => {
     const d = design(driveChain);
@@ -145,5 +162,26 @@ describe('measureDesign', () => {
     // 2 V peak at the top of the sweep passes unchanged (the ideal part swings to +-4.5 V), up to the
     // resampling filters' passband ripple (0.01 dB = 0.12 %) and the fade-in.
     expectClose(report.maxOutputVolts, 2, { rtol: 5e-3 });
+  });
+});
+
+describe('phase unwrapping', () => {
+  it('a fourth-order RC low-pass turns through -360 degrees without folding back to +180', () => {
+    // Four isolated RC sections at 1 kHz: each adds -atan(f / fc) (first-order low-pass phase, e.g.
+    // Sedra & Smith ch. 1), so the total runs continuously from near 0 to about -4 x 87 degrees by 20 kHz.
+    const sections: Stage<number>[] = [1, 2, 3, 4].map((k) => ({ id: `lp${k}`, type: 'lowpass', r: 1000, c: 1 / (2 * Math.PI * 1000 * 1000) }));
+    const frequencies = [20, 100, 500, 1000, 2000, 5000, 10000, 20000];
+    const wrapped = predictResponse(design(sections), RATE, 1, frequencies);
+    const continuous = unwrapPhase(wrapped);
+    expect(wrapped.some((p) => p.deg > 0)).toBe(true); // folded: the reason to unwrap
+    continuous.forEach((p, i) => {
+      const analog = -4 * (Math.atan(p.hz / 1000) * 180) / Math.PI;
+      // The sections are bilinear-discretised at 48 kHz, pre-warped at 1 kHz: close to the analog phase in the audio band.
+      expectClose(p.deg, analog, { atol: 25 });
+      if (i > 0) expect(p.deg).toBeLessThan(continuous[i - 1].deg);
+    });
+    // A measurement a hair across +-180 from its prediction stays on the prediction's branch.
+    const measured = continuous.map((p) => ({ ...p, deg: ((p.deg + 0.5 + 540) % 360) - 180 }));
+    unwrapPhase(measured, continuous).forEach((p, i) => expectClose(p.deg, continuous[i].deg + 0.5, { atol: 1e-9 }));
   });
 });

@@ -39,4 +39,20 @@ describe('plots (vega-lite rendered to SVG in Node)', () => {
     expect(first).toContain('H3');
     expect(first).toContain('<line'); // stems are rule marks
   });
+
+  it('keeps 14 series readable: legend in the given order, every label whole, every line its own colour', async () => {
+    const names = Array.from({ length: 14 }, (_, i) => `${i + 1}. clip.diode=1n4148, drive=0.${i} (a label longer than vega cuts by default)`);
+    const svg = await renderLinePlotSvg({
+      title: 'Players',
+      xLabel: 'frequency (Hz)',
+      yLabel: 'level (dB re full-scale sine)',
+      xScale: 'log',
+      series: names.map((name, i) => ({ name, points: [{ x: 100, y: -i }, { x: 1000, y: -2 * i }] })),
+    });
+    const positions = names.map((name) => svg.indexOf(name));
+    for (const position of positions) expect(position).toBeGreaterThan(0); // whole, not cut with an ellipsis
+    for (let i = 1; i < positions.length; i++) expect(positions[i]).toBeGreaterThan(positions[i - 1]); // "10." after "9."
+    const strokes = new Set([...svg.matchAll(/stroke="(#[0-9a-f]{6})"/gi)].map((m) => m[1].toLowerCase()));
+    expect(strokes.size).toBeGreaterThanOrEqual(14);
+  });
 });
