@@ -21,6 +21,8 @@ import {
 } from './response.js';
 import { staticTransferCurve, type TransferPoint } from './transferCurve.js';
 import { measureAliasing, type AliasPoint } from './aliasing.js';
+import { designNoise, PICKUP_SOURCE, PICKUP_SOURCE_LABEL, type NoiseReport } from './designNoise.js';
+import type { SourceImpedance } from '../solver/noise.js';
 
 export interface MeasureOptions {
   freqHz: number;
@@ -33,6 +35,8 @@ export interface MeasureOptions {
   sweepMaxVolts: number;
   /** Sample rate the bench runs at (the file rate a render would have). */
   sampleRate: number;
+  /** What terminates the input for the noise figures, and its name in reports. */
+  noiseSource: { impedance: SourceImpedance | null; label: string };
 }
 
 export const DEFAULT_MEASURE_OPTIONS: MeasureOptions = {
@@ -43,6 +47,7 @@ export const DEFAULT_MEASURE_OPTIONS: MeasureOptions = {
   aliasLevelVolts: 1,
   sweepMinVolts: 0.005,
   sweepMaxVolts: 2,
+  noiseSource: { impedance: PICKUP_SOURCE, label: PICKUP_SOURCE_LABEL },
 };
 
 /** Prediction and measurement must agree within this wherever the chain is linear (issue spec). */
@@ -78,6 +83,8 @@ export interface MeasureReport {
   /** null when the output is silent at the reference tone. */
   gainDb: number | null;
   maxOutputVolts: number;
+  /** Output noise with the input terminated by `noiseSource` (analysis/designNoise.ts). */
+  noise: NoiseReport;
 }
 
 export function measureDesign(design: Design<number>, options: MeasureOptions): MeasureReport {
@@ -139,5 +146,7 @@ export function measureDesign(design: Design<number>, options: MeasureOptions): 
     aliasByOversample,
     gainDb: gainPoint.db,
     maxOutputVolts: Math.max(outputPeak, ...sweep.map((point) => point.outputPeakVolts)),
+    // The SNR's signal: the RMS of the output's fundamental at the reference tone.
+    noise: designNoise(design, { source: options.noiseSource.impedance, sourceLabel: options.noiseSource.label, referenceVolts: tone.fundamentalVolts / Math.SQRT2 }),
   };
 }

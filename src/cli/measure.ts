@@ -9,7 +9,7 @@ import { DEFAULT_MEASURE_OPTIONS, measureDesign, type MeasureReport } from '../a
 import { PREDICTION_BASIS } from '../analysis/response.js';
 import { formatRows, formatSignificant, formatValue } from '../report/table.js';
 import { writeMeasureHtml, writeMeasureJson } from '../report/measureReport.js';
-import { collect, parseOversample, parsePositiveNumber } from './options.js';
+import { collect, parseNoiseSource, parseOversample, parsePositiveNumber } from './options.js';
 import { AUDIO_BAND_HIGH_HZ, AUDIO_BAND_LOW_HZ } from '../dsp/audioBand.js';
 
 interface MeasureFlags {
@@ -18,6 +18,7 @@ interface MeasureFlags {
   set?: string[];
   oversample: string;
   aliasSweep?: boolean;
+  source: string;
   json?: string;
   html?: string;
   parts?: string;
@@ -26,6 +27,10 @@ interface MeasureFlags {
 function formatVolts(volts: number | null): string {
   if (volts === null) return 'not reached';
   return volts < 0.1 ? `${(volts * 1000).toFixed(1)} mV` : `${volts.toFixed(3)} V`;
+}
+
+function formatNoiseVolts(volts: number): string {
+  return volts < 1e-3 ? `${(volts * 1e6).toFixed(2)} uV` : `${(volts * 1e3).toFixed(2)} mV`;
 }
 
 export function summarizeMeasurement(report: MeasureReport): string {
@@ -45,6 +50,10 @@ export function summarizeMeasurement(report: MeasureReport): string {
         ['THD 3 % at input', formatVolts(report.onset['3'])],
         ['THD 10 % at input', formatVolts(report.onset['10'])],
         ['strongest alias', report.aliasDbc === null ? 'n/a (silent output)' : `${report.aliasDbc.toFixed(1)} dBc at ${report.aliasHz.toFixed(0)} Hz`],
+        [`output noise, 20 Hz-20 kHz (input: ${report.noise.source})`, `${formatValue(report.noise.unweightedDbv, 1, 'dBV')} (${formatNoiseVolts(report.noise.unweightedVolts)})`],
+        ['output noise, A-weighted', `${formatValue(report.noise.aWeightedDbv, 1, 'dBV')} (${formatNoiseVolts(report.noise.aWeightedVolts)})`],
+        ['signal to noise (A-weighted)', formatValue(report.noise.snrDb, 1, 'dB')],
+        ['largest noise sources', report.noise.contributors.slice(0, 3).map((c) => `${c.part} ${(c.share * 100).toFixed(0)} %`).join(', ') || 'n/a'],
       ],
     ),
   );
@@ -83,6 +92,7 @@ export function registerMeasureCommand(program: Command): void {
     .option('--set <key=value>', 'override a knob or stage field; repeatable', collect)
     .option('--oversample <N>', 'oversampling of the nonlinear stages: 1, 2, 4, 8 or 16', String(DEFAULT_MEASURE_OPTIONS.oversample))
     .option('--alias-sweep', 'measure aliasing at every oversampling factor 1..16')
+    .option('--source <impedance>', 'what terminates the input for the noise figures: pickup (10k + 3 H), 0 (short), a resistance (47k) or resistance+inductance (8k2+2.5H)', 'pickup')
     .option('--json <file>', 'write the measurements as JSON')
     .option('--html <file>', 'write a self-contained HTML report (plots also saved as SVG beside it)')
     .option('--parts <file>', 'extra parts library (JSON)')
@@ -99,6 +109,7 @@ export function registerMeasureCommand(program: Command): void {
         levelVolts: parsePositiveNumber('--level', flags.level, 'V'),
         oversample: parseOversample(flags.oversample),
         aliasSweep: flags.aliasSweep === true,
+        noiseSource: parseNoiseSource(flags.source),
       });
       if (flags.json) await writeMeasureJson(flags.json, report);
       if (flags.html) await writeMeasureHtml(flags.html, report);

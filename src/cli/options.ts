@@ -5,6 +5,9 @@ import { defaultThreadCount } from '../render/workerPool.js';
 import { OVERSAMPLE_FACTORS, type OversampleFactor } from '../dsp/oversampler.js';
 import type { CalibrationScale } from '../audio/calibration.js';
 import type { WavOutputBits } from '../audio/wavWrite.js';
+import { PICKUP_SOURCE, PICKUP_SOURCE_LABEL } from '../analysis/designNoise.js';
+import { parseValue } from '../design/values.js';
+import type { SourceImpedance } from '../solver/noise.js';
 
 /** Commander reducer for repeatable options such as `--set a=1 --set b=2`. */
 export function collect(value: string, previous: string[] = []): string[] {
@@ -90,4 +93,19 @@ export function addRenderOptions(command: Command, setHelp: string): Command {
     .option('--no-dither', '16-bit output rounded plainly, without TPDF dither')
     .option('--parts <file>', 'extra parts library (JSON)')
     .option('--threads <N>', 'render threads, this one and N - 1 workers (default: one per core)');
+}
+
+/**
+ * `--source`: what terminates the input while noise is measured: `pickup` (the default, 10k + 3 H),
+ * `0` (a short), a resistance (`47k`), or a resistance plus an inductance (`8k2+2.5H`).
+ */
+export function parseNoiseSource(text: string): { impedance: SourceImpedance | null; label: string } {
+  const trimmed = text.trim();
+  if (trimmed === 'pickup') return { impedance: PICKUP_SOURCE, label: PICKUP_SOURCE_LABEL };
+  const [ohmsText, henriesText, extra] = trimmed.split('+');
+  if (extra !== undefined || ohmsText === undefined) throw new UserError(`--source: "${text}" is not a source (expected pickup, 0, a resistance such as 47k, or resistance+inductance such as 10k+3H)`);
+  const ohms = parseValue(ohmsText.trim(), '--source', 'ohm', { allowZero: true });
+  const henries = henriesText === undefined ? 0 : parseValue(henriesText.trim(), '--source', 'henry', { allowZero: true });
+  if (ohms === 0 && henries === 0) return { impedance: null, label: 'input shorted (0 ohm)' };
+  return { impedance: { ohms, henries }, label: henries > 0 ? `${ohmsText.trim()} + ${henriesText?.trim()}` : `${ohmsText.trim()} ohm` };
 }

@@ -38,6 +38,7 @@ const KIND_SCHEMAS: Readonly<Record<Exclude<FieldKind, 'stageType'>, JsonSchema>
   voltsOrZero: ref('valueOrZero'),
   voltsOrInf: ref('valueOrUnlimited'),
   amperes: ref('positiveValue'),
+  noiseDensity: ref('valueOrZero'),
   hertzOrInf: ref('valueOrUnlimited'),
   voltsPerSecondOrInf: ref('valueOrUnlimited'),
   dimensionless: { type: 'number', exclusiveMinimum: 0 },

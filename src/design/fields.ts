@@ -18,6 +18,7 @@ export type FieldKind =
   | 'voltsOrZero'
   | 'voltsOrInf'
   | 'amperes'
+  | 'noiseDensity' // V/sqrt(Hz) or A/sqrt(Hz), zero or more
   | 'hertzOrInf'
   | 'voltsPerSecondOrInf'
   | 'dimensionless'
@@ -212,6 +213,8 @@ export const OPAMP_FIELDS: FieldTable = {
   openLoopGain: optional('dimensionless', 'DC open-loop voltage gain, V/V ("inf" for the ideal part; default 100000)'),
   commonModeLowVolts: optional('voltsOrZero', 'How close to the negative rail the inputs may go, volts (omitted: not stated)'),
   commonModeHighVolts: optional('voltsOrZero', 'How close to the positive rail the inputs may go, volts (omitted: not stated)'),
+  noiseVoltage: optional('noiseDensity', 'Input voltage noise density at 1 kHz, V/sqrt(Hz), e.g. "18n" (omitted: not stated, no op-amp noise)'),
+  noiseCurrent: optional('noiseDensity', 'Input current noise density at 1 kHz, A/sqrt(Hz), e.g. "10f" (omitted: not stated)'),
   source: optional('text', 'Where the numbers come from'),
 };
 

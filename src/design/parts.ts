@@ -76,6 +76,8 @@ export function parseOpampEntry(raw: unknown, name: string, path: string, where:
     openLoopGain: entry.openLoopGain === undefined ? DEFAULT_OPEN_LOOP_GAIN : readUnlimited(entry.openLoopGain, at('openLoopGain'), where, 'ratio'),
     commonModeLowVolts: optionalVolts(entry.commonModeLowVolts, at('commonModeLowVolts'), where),
     commonModeHighVolts: optionalVolts(entry.commonModeHighVolts, at('commonModeHighVolts'), where),
+    noiseVoltage: entry.noiseVoltage === undefined ? null : parseValue(entry.noiseVoltage, where.at(at('noiseVoltage')), 'volt', { allowZero: true }),
+    noiseCurrent: entry.noiseCurrent === undefined ? null : parseValue(entry.noiseCurrent, where.at(at('noiseCurrent')), 'ampere', { allowZero: true }),
     source: entry.source === undefined ? defaultSource : readString(entry.source, at('source'), where, 'a source note'),
   };
   if (opamp.supplyMaxVolts < opamp.supplyMinVolts) {

@@ -41,6 +41,10 @@ export interface OpampParams {
   /** Input common-mode range: how close to the negative / positive rail the inputs may go, volts; null = not stated. */
   commonModeLowVolts: number | null;
   commonModeHighVolts: number | null;
+  /** Input voltage noise density at 1 kHz, V/sqrt(Hz) (datasheet e_n); null = not stated. */
+  noiseVoltage: number | null;
+  /** Input current noise density at 1 kHz, A/sqrt(Hz) (datasheet i_n); null = not stated. */
+  noiseCurrent: number | null;
   source: string;
 }
 

@@ -5,7 +5,7 @@
  */
 import { UserError } from '../errors.js';
 
-export type ValueUnit = 'ohm' | 'farad' | 'volt' | 'ampere' | 'hertz' | 'voltPerSecond' | 'ratio';
+export type ValueUnit = 'ohm' | 'farad' | 'henry' | 'volt' | 'ampere' | 'hertz' | 'voltPerSecond' | 'ratio';
 
 export interface ParseValueOptions {
   /** Accept 0 (e.g. an optional series resistor, a unity-gain rf). Negative values are never valid. */
@@ -57,6 +57,7 @@ const UNITS: Readonly<Record<ValueUnit, UnitInfo>> = {
     symbols: ['F'],
     rkmUnitLetter: 'F',
   },
+  henry: { noun: 'inductance', expected: 'henries, e.g. 3, 3H or 470m', symbols: ['H'], rkmUnitLetter: null },
   volt: { noun: 'voltage', expected: 'volts, e.g. 9, 9V or 1.5', symbols: ['V'], rkmUnitLetter: 'V' },
   ampere: { noun: 'current', expected: 'amperes, e.g. 2.52n, 10m or 0.02', symbols: ['A'], rkmUnitLetter: 'A' },
   hertz: { noun: 'frequency', expected: 'hertz, e.g. 1k, 4MHz or 440', symbols: ['Hz'], rkmUnitLetter: null },
@@ -81,7 +82,8 @@ function describeValue(value: unknown): string {
 
 function badValue(value: unknown, path: string, unit: ValueUnit): UserError {
   const info = UNITS[unit];
-  return new UserError(`${path}: ${describeValue(value)} is not a ${info.noun} (expected ${info.expected})`);
+  const article = /^[aeiou]/.test(info.noun) ? 'an' : 'a';
+  return new UserError(`${path}: ${describeValue(value)} is not ${article} ${info.noun} (expected ${info.expected})`);
 }
 
 function unitSuffixOk(suffix: string, info: UnitInfo): boolean {

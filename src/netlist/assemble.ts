@@ -37,6 +37,21 @@ export interface Conductance {
   a: number;
   b: number;
   siemens: number;
+  /** The part whose thermal noise (4kT/R) this conductance carries; absent for modelling aids (gmin, op-amp internals). */
+  noisyElement?: string;
+}
+
+/** An op-amp's input noise (datasheet densities at 1 kHz), for the noise analysis (solver/noise.ts). */
+export interface OpampNoise {
+  elementId: string;
+  plus: number;
+  minus: number;
+  /** The macromodel's compensation node: an input voltage e reaches it as a current gm e. */
+  compensation: number;
+  gm: number;
+  /** V/sqrt(Hz) at the input, A/sqrt(Hz) into each input. */
+  voltsPerRootHz: number;
+  ampsPerRootHz: number;
 }
 
 export interface Capacitor {
@@ -95,6 +110,7 @@ export interface AssembledCircuit {
   followers: VoltageFollower[];
   transconductances: Transconductance[];
   devices: DeviceInstance[];
+  opampNoise: OpampNoise[];
   inputNode: number;
   outputNode: number;
 }
@@ -146,14 +162,16 @@ export function assembleCircuit(
     followers: [],
     transconductances: [],
     devices: [],
+    opampNoise: [],
     inputNode: nodes.of(stage.input),
     outputNode: GROUND,
   };
   out.sources.push({ node: out.inputNode, kind: 'input', volts: 0 });
   const vt = thermalVoltage(ctx.temperatureC);
   const where = (id: string): string => `stage "${stage.id}" element "${id}"`;
-  const resistor = (a: number, b: number, ohms: number): void => {
-    if (a !== b) out.conductances.push({ a, b, siemens: 1 / ohms });
+  // Element ids with '#' are the compiler's own modelling aids (stageBlocks.ts), not parts: no noise.
+  const resistor = (a: number, b: number, ohms: number, elementId: string): void => {
+    if (a !== b) out.conductances.push({ a, b, siemens: 1 / ohms, ...(elementId.includes('#') ? {} : { noisyElement: elementId }) });
   };
   const junctionGmin = (a: number, b: number): void => {
     if (a !== b) out.conductances.push({ a, b, siemens: JUNCTION_GMIN_SIEMENS });
@@ -164,7 +182,7 @@ export function assembleCircuit(
     switch (element.type) {
       case 'resistor':
         requirePositive(element.ohms, `${where(element.id)} value`, 'ohms');
-        resistor(pin[0], pin[1], element.ohms);
+        resistor(pin[0], pin[1], element.ohms, element.id);
         break;
       case 'capacitor':
         requirePositive(element.farads, `${where(element.id)} value`, 'farads');
@@ -174,8 +192,8 @@ export function assembleCircuit(
         requirePositive(element.ohms, `${where(element.id)} value`, 'ohms');
         const position = knobs[element.knob] ?? 0.5;
         const fraction = potFraction(element.taper, position, element.reverse);
-        resistor(pin[0], pin[1], Math.max(POT_END_OHMS, fraction * element.ohms));
-        resistor(pin[1], pin[2], Math.max(POT_END_OHMS, (1 - fraction) * element.ohms));
+        resistor(pin[0], pin[1], Math.max(POT_END_OHMS, fraction * element.ohms), element.id);
+        resistor(pin[1], pin[2], Math.max(POT_END_OHMS, (1 - fraction) * element.ohms), element.id);
         break;
       }
       case 'diode': {
@@ -183,7 +201,7 @@ export function assembleCircuit(
         const { saturationCurrent, ideality, seriesResistance } = element.diode;
         const seriesOhms = element.count * seriesResistance;
         const junction = seriesOhms > 0 ? nodes.of(`${element.id}#junction`) : pin[1];
-        if (seriesOhms > 0) resistor(junction, pin[1], seriesOhms);
+        if (seriesOhms > 0) resistor(junction, pin[1], seriesOhms, element.id);
         junctionGmin(pin[0], junction);
         out.devices.push({
           elementId: element.id,
@@ -279,6 +297,9 @@ function addOpamp(
     });
   } else {
     out.transconductances.push({ from: GROUND, to: c, ctrlA: plus, ctrlB: minus, siemens: gm });
+  }
+  if (opamp.noiseVoltage !== null || opamp.noiseCurrent !== null) {
+    out.opampNoise.push({ elementId: id, plus, minus, compensation: c, gm, voltsPerRootHz: opamp.noiseVoltage ?? 0, ampsPerRootHz: opamp.noiseCurrent ?? 0 });
   }
   out.devices.push({
     elementId: `${id}#rails`,

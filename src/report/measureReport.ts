@@ -67,6 +67,17 @@ async function measurePlots(report: MeasureReport): Promise<NamedSvg[]> {
       }),
     },
     {
+      name: 'noise',
+      svg: await renderLinePlotSvg({
+        title: `Output noise density (input: ${report.noise.source})`,
+        xLabel: FREQUENCY_AXIS,
+        yLabel: 'noise (V per root Hz)',
+        xScale: 'log',
+        yScale: 'log',
+        series: [{ name: 'output noise', points: report.noise.densityPerHz.map((p) => ({ x: p.hz, y: p.voltsPerRootHz })) }],
+      }),
+    },
+    {
       name: 'transfer',
       svg: await renderLinePlotSvg({
         title: 'Static transfer curve',
@@ -124,6 +135,28 @@ export async function writeMeasureHtml(path: string, report: MeasureReport): Pro
       figures: [figure('response'), figure('phase')],
     },
     { heading: 'Transfer curve', figures: [figure('transfer')] },
+    {
+      heading: 'Noise',
+      paragraphs: [
+        `Output noise with the input terminated by ${report.noise.source}: resistor thermal noise (4kTR) and op-amp input noise (datasheet densities at 1 kHz, taken as white), each carried to the output through the small-signal model; powers add. A-weighting per IEC 61672-1; signal to noise against the output's fundamental at the reference tone (${report.noise.referenceVolts.toExponential(3)} V RMS).`,
+      ],
+      tables: [
+        {
+          columns: ['figure', 'value'],
+          rows: [
+            ['unweighted, 20 Hz-20 kHz', `${formatValue(report.noise.unweightedDbv, 1, 'dBV')} (${report.noise.unweightedVolts.toExponential(3)} V)`],
+            ['A-weighted', `${formatValue(report.noise.aWeightedDbv, 1, 'dBV')} (${report.noise.aWeightedVolts.toExponential(3)} V)`],
+            ['signal to noise (A-weighted)', formatValue(report.noise.snrDb, 1, 'dB')],
+          ],
+        },
+        {
+          columns: ['source', 'share of the noise power'],
+          rows: report.noise.contributors.map((c) => [c.part, `${(c.share * 100).toFixed(1)} %`]),
+          numericColumns: [1],
+        },
+      ],
+      figures: [figure('noise')],
+    },
   ];
   if (report.aliasByOversample.length > 1) {
     sections.push({

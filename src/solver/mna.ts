@@ -8,7 +8,7 @@
  * with G the conductances, sources and controlled sources; Cm the capacitors; u the stage input;
  * i the nonlinear devices' port currents, injected by Ni and sensed by Nv. See docs/models.md, "Nodal analysis".
  */
-import { GROUND, type AssembledCircuit } from '../netlist/assemble.js';
+import { GROUND, type AssembledCircuit, type OpampNoise } from '../netlist/assemble.js';
 import { PORT_COUNT, type DeviceKind } from '../netlist/deviceKind.js';
 
 export interface MnaSystem {
@@ -41,6 +41,9 @@ export interface MnaSystem {
   params: Float64Array;
   outputIndex: number;
   inputIndex: number;
+  /** Thermal noise: conductance `siemens` between a and b, of part `element` (solver/noise.ts). */
+  noisyConductances: { a: number; b: number; siemens: number; element: string }[];
+  opampNoise: OpampNoise[];
 }
 
 function add(matrix: Float64Array, n: number, row: number, col: number, value: number): void {
@@ -133,6 +136,8 @@ export function buildMna(circuit: AssembledCircuit): MnaSystem {
     params: Float64Array.from(circuit.devices.flatMap((d) => d.params)),
     outputIndex: circuit.outputNode,
     inputIndex: circuit.inputNode,
+    noisyConductances: circuit.conductances.flatMap(({ a, b, siemens, noisyElement }) => (noisyElement === undefined ? [] : [{ a, b, siemens, element: noisyElement }])),
+    opampNoise: circuit.opampNoise,
   };
 }
 

@@ -14,13 +14,20 @@ export interface ComplexGain {
   im: number;
 }
 
-/** The linearised system's unknowns for a unit input at each frequency (hertz). */
-function solveSmallSignal(system: MnaSystem, operatingPoint: OperatingPoint, frequenciesHz: readonly number[]): { re: Float64Array; im: Float64Array }[] {
+/** The linearised system G - Ni J Nv (devices at the operating point) and the capacitance matrix Cm: Y(j w) = real + j w capacitance. */
+export function linearisedMatrices(system: MnaSystem, operatingPoint: OperatingPoint): { real: Float64Array; capacitance: Float64Array } {
   const n = system.size;
   const real = Float64Array.from(system.conductance);
   stampDeviceJacobian(system, operatingPoint.jacobian, jacobianLayout(system).starts, real);
   const capacitance = new Float64Array(n * n);
   for (let k = 0; k < system.capFarads.length; k++) stampConductance(capacitance, n, system.capA[k], system.capB[k], system.capFarads[k]);
+  return { real, capacitance };
+}
+
+/** The linearised system's unknowns for a unit input at each frequency (hertz). */
+function solveSmallSignal(system: MnaSystem, operatingPoint: OperatingPoint, frequenciesHz: readonly number[]): { re: Float64Array; im: Float64Array }[] {
+  const n = system.size;
+  const { real, capacitance } = linearisedMatrices(system, operatingPoint);
   return frequenciesHz.map((hz) => {
     const omega = 2 * Math.PI * hz;
     const re = Float64Array.from(system.bIn);

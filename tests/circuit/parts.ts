@@ -45,6 +45,8 @@ export const IDEAL_OPAMP: OpampParams = {
   openLoopGain: Infinity,
   commonModeLowVolts: null,
   commonModeHighVolts: null,
+  noiseVoltage: null,
+  noiseCurrent: null,
   source: 'test',
 };
 
@@ -61,5 +63,7 @@ export const TL072: OpampParams = {
   openLoopGain: 2e5, // 200 V/mV typ (TL072 datasheet, large-signal voltage gain; from memory)
   commonModeLowVolts: null,
   commonModeHighVolts: null,
+  noiseVoltage: null,
+  noiseCurrent: null,
   source: 'test',
 };

@@ -20,13 +20,23 @@ describe('clipbench measure', () => {
       expect(report, key).toHaveProperty(key);
     }
     expect(Object.keys(report.onset).sort()).toEqual(['1', '10', '3']);
+    expect(Object.keys(report.noise).sort()).toEqual(
+      ['aWeightedDbv', 'aWeightedVolts', 'contributors', 'densityPerHz', 'referenceVolts', 'snrDb', 'source', 'unweightedDbv', 'unweightedVolts'].sort(),
+    );
+    expect(report.noise.source).toBe('pickup (10k + 3 H)');
+    // A-weighting takes away more than it adds for noise spread over the band (it is below 0 dB under 1 kHz and above 5 kHz).
+    expect(report.noise.aWeightedVolts).toBeLessThan(report.noise.unweightedVolts);
+    const shares = report.noise.contributors.reduce((sum: number, c: { share: number }) => sum + c.share, 0);
+    expect(shares).toBeCloseTo(1, 9);
+    expect(result.stdout).toMatch(/output noise, A-weighted\s+-\d+\.\d dBV/);
     expect(report.harmonics[0]).toEqual(expect.objectContaining({ order: 2 }));
     // A symmetric 1N4148 pair: odd harmonics dominate (a symmetric odd nonlinearity makes no even harmonics; Fourier series symmetry).
     expect(report.harmonics[1].dbc).toBeGreaterThan(report.harmonics[0].dbc + 60);
     const page = readFileSync(html, 'utf8');
     expect(page).toMatch(/<svg/);
     expect(page).not.toMatch(/<script src=|<link /); // self-contained: nothing loaded from elsewhere
-    for (const plot of ['harmonics', 'thd-by-level', 'response', 'phase', 'transfer']) {
+    expect(page).toContain('Output noise density');
+    for (const plot of ['harmonics', 'thd-by-level', 'response', 'phase', 'transfer', 'noise']) {
       expect(existsSync(path.join(dir, `m-${plot}.svg`)), plot).toBe(true);
     }
   });
@@ -44,6 +54,15 @@ describe('clipbench measure', () => {
     expect(report.gainDb).toBeNull();
     expect(report.harmonics.every((h: { dbc: number | null }) => h.dbc === null)).toBe(true);
     expect(result.stdout).toMatch(/THD\s+n\/a/);
+  });
+
+  it('refuses a --source it cannot read, with one line naming the flag', () => {
+    for (const bad of ['10k+3H+2', 'pickups', '-5k', '10k+3F']) {
+      const result = runCli(['measure', design, '--source', bad]);
+      expect(result.status).toBe(2);
+      expect(result.stderr.trim().split('\n')).toHaveLength(1);
+      expect(result.stderr).toMatch(/--source/);
+    }
   });
 
   it('refuses a test frequency outside the audio band', () => {

@@ -55,6 +55,8 @@ export const LM358: OpampParams = {
   openLoopGain: 1e5,
   commonModeLowVolts: null,
   commonModeHighVolts: null,
+  noiseVoltage: null,
+  noiseCurrent: null,
   source: 'test',
 };
 
