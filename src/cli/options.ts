@@ -109,3 +109,10 @@ export function parseNoiseSource(text: string): { impedance: SourceImpedance | n
   if (ohms === 0 && henries === 0) return { impedance: null, label: 'input shorted (0 ohm)' };
   return { impedance: { ohms, henries }, label: henries > 0 ? `${ohmsText.trim()} + ${henriesText?.trim()}` : `${ohmsText.trim()} ohm` };
 }
+
+/** A seed: a whole number from 0 to 2^32 - 1. */
+export function parseSeed(flag: string, text: string): number {
+  const seed = Number(text);
+  if (text.trim() === '' || !Number.isInteger(seed) || seed < 0 || seed > 0xffffffff) throw new UserError(`${flag}: "${text}" is not a seed (expected a whole number from 0 to 4294967295)`);
+  return seed;
+}

@@ -4,11 +4,13 @@ import type { Command } from 'commander';
 import { runRenderJobs } from '../render/workerPool.js';
 import { uniqueTakeNames, type RenderJob } from '../render/renderJob.js';
 import { formatRows, formatValue } from '../report/table.js';
-import { addRenderOptions, parseBits, parseCalibration, parseOversample, parseThreads, type RenderFlagValues } from './options.js';
+import { addRenderOptions, parseBits, parseCalibration, parseOversample, parseSeed, parseThreads, type RenderFlagValues } from './options.js';
 import { createProgressBar } from './progress.js';
 
 interface RenderFlags extends RenderFlagValues {
   output: string;
+  noise?: boolean;
+  noiseSeed: string;
 }
 
 export function registerRenderCommand(program: Command): void {
@@ -17,7 +19,9 @@ export function registerRenderCommand(program: Command): void {
     .description('render dry DI takes through a design; writes one WAV and one JSON sidecar per take')
     .argument('<design>', 'design file (JSON)')
     .argument('<inputs...>', 'dry DI takes (WAV)')
-    .requiredOption('-o, --output <dir>', 'output folder (created if missing)');
+    .requiredOption('-o, --output <dir>', 'output folder (created if missing)')
+    .option('--noise', "add the circuit's modelled output noise (as measure computes it, input driven by the take), seeded")
+    .option('--noise-seed <n>', 'seed of the added noise (a whole number; same seed, same bits)', '1');
   addRenderOptions(command, 'override a knob (drive=0.8) or a stage field (clip.diode=1n34a); repeatable')
     .action(async (designPath: string, inputs: string[], flags: RenderFlags) => {
       const scale = parseCalibration(flags.fullScale, flags.inputPeak);
@@ -34,6 +38,7 @@ export function registerRenderCommand(program: Command): void {
         scale,
         bits: parseBits(flags.bits),
         dither: flags.dither,
+        ...(flags.noise ? { noiseSeed: parseSeed('--noise-seed', flags.noiseSeed) } : {}),
       }));
       createOutputFolder(flags.output);
       noteOutputFolder(flags.output);

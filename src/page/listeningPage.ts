@@ -11,6 +11,7 @@
  *   generator when the page address ends in #seed=N (for repeatable tests).
  */
 import { binomialTailProbability } from '../compare/binomial.js';
+import { mulberry32 } from '../dsp/random.js';
 
 const DRIFT_SECONDS = 0.025;
 const SEEK_STEP_SECONDS = 2;
@@ -39,18 +40,6 @@ interface BlindResult {
   p: number;
   a: string;
   b: string;
-}
-
-/** Mulberry32, a small public-domain seeded generator: repeatable blind tests. */
-function mulberry32(seed: number): () => number {
-  let state = seed >>> 0;
-  return () => {
-    state = (state + 0x6d2b79f5) >>> 0;
-    let t = state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
 }
 
 function pageRandomBit(): () => boolean {

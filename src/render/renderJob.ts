@@ -21,6 +21,8 @@ import { peakOf } from '../audio/calibration.js';
 import { applyLoudnessMatch, type LoudnessMatchReport, type LoudnessMatchTarget } from './loudnessMatch.js';
 import { measureWrittenTake, type TakeMetrics } from '../analysis/takeMetrics.js';
 import { referenceThdPercent, thdAtLevelPercent } from '../analysis/referenceTone.js';
+import { designNoise } from '../analysis/designNoise.js';
+import { interpolatedDensity } from '../dsp/shapedNoise.js';
 
 export interface RenderJob {
   designPath: string;
@@ -52,6 +54,8 @@ export interface RenderJob {
   referenceThd?: boolean;
   /** Also measure the design's THD on a 1 kHz tone at the take's own input peak (`compare`). */
   thdAtTakePeak?: boolean;
+  /** Add the design's modelled output noise (`render --noise`), from this seed. */
+  noiseSeed?: number;
 }
 
 export interface RenderJobResult {
@@ -147,7 +151,16 @@ export async function runRenderJob(job: RenderJob, onProgress?: RenderProgress):
   assertNotAnInput(sidecarPath, inputs);
 
   // The decoded samples are rendered in place: afterwards they hold the render, full scale = 1.
-  const summary = renderTakeInPlace(design, wav, { oversample: job.oversample, scale: job.scale, onProgress });
+  // The take's own noise (pickup, interface) is in the recording: the added noise is the circuit's alone.
+  const noise = job.noiseSeed === undefined ? undefined : designNoise(design, { source: null, sourceLabel: 'the take', referenceVolts: 0 });
+  const summary = renderTakeInPlace(design, wav, {
+    oversample: job.oversample,
+    scale: job.scale,
+    onProgress,
+    ...(noise && job.noiseSeed !== undefined
+      ? { noise: { seed: job.noiseSeed, density: interpolatedDensity(noise.densityPerHz.map((p) => ({ hz: p.hz, density: p.voltsPerRootHz ** 2 }))) } }
+      : {}),
+  });
   // `summary.output` stays the circuit's own level; `loudnessMatch` tells the gain the file got.
   const match = job.match ? applyLoudnessMatch(wav.channels, wav.sampleRate, job.match) : undefined;
   await writeWavFile(wavPath, wav.channels, wav.sampleRate, job.bits, job.dither ?? false);
@@ -158,6 +171,7 @@ export async function runRenderJob(job: RenderJob, onProgress?: RenderProgress):
     output: { ...summary.output, file: path.basename(wavPath), bits: job.bits },
     overrides: job.overrides,
     ...(match ? { loudnessMatch: match } : {}),
+    ...(noise && job.noiseSeed !== undefined ? { noise: { seed: job.noiseSeed, unweightedDbv: noise.unweightedDbv, aWeightedDbv: noise.aWeightedDbv } } : {}),
   };
   const written = [wavPath];
   let metrics: TakeMetrics | undefined;

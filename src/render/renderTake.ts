@@ -11,11 +11,14 @@ import { buildChain } from '../circuit/chain.js';
 import type { OversampleFactor } from '../dsp/oversampler.js';
 import { renderInto, type RenderProgress } from '../circuit/renderChannel.js';
 import { findOvers, measureLevels, voltsToDbfs, type OverReport } from '../audio/levels.js';
+import { addShapedNoise } from '../dsp/shapedNoise.js';
 
 export interface RenderTakeOptions {
   oversample: OversampleFactor;
   scale: CalibrationScale;
   onProgress?: RenderProgress;
+  /** Add the design's own output noise (one-sided density, V^2/Hz), seeded; channel c uses seed + c. */
+  noise?: { density: (hz: number) => number; seed: number };
 }
 
 /** Levels of a take or render; the dB figures are null for silence. */
@@ -69,6 +72,8 @@ export function renderTakeInPlace(design: Design<number>, wav: DecodedWav, optio
     const offset = index * wav.frames;
     const progress = options.onProgress;
     renderInto(chain, channel, channel, voltsPerFullScale, 1 / voltsPerFullScale, progress ? (done) => progress(offset + done, totalSamples) : undefined);
+    const noise = options.noise;
+    if (noise) addShapedNoise(channel, wav.sampleRate, (hz) => noise.density(hz) / (voltsPerFullScale * voltsPerFullScale), noise.seed + index);
     for (const stage of chain.stages) {
       const meter = stage.processor.conduction;
       if (!meter) continue;
