@@ -6,6 +6,7 @@ import { registerMeasureCommand } from './measure.js';
 import { registerAnalyzeCommand } from './analyze.js';
 import { registerCheckCommand } from './check.js';
 import { registerPartsCommand } from './parts.js';
+import { registerSpreadCommand } from './spread.js';
 
 /** Every command file exports `register<Name>Command(program)`; they are wired up here in menu order. */
 export function registerCommands(program: Command): void {
@@ -15,5 +16,6 @@ export function registerCommands(program: Command): void {
   registerMeasureCommand(program);
   registerAnalyzeCommand(program);
   registerCheckCommand(program);
+  registerSpreadCommand(program);
   registerPartsCommand(program);
 }

@@ -17,6 +17,7 @@ import {
   type FieldSpec,
 } from './fields.js';
 import { MAX_DIODE_COUNT } from './rawReaders.js';
+import { PART_KINDS } from './tolerances.js';
 import { TEMPERATURE_MAX_C, TEMPERATURE_MIN_C } from './parseDesign.js';
 
 type JsonSchema = Record<string, unknown>;
@@ -39,6 +40,9 @@ const KIND_SCHEMAS: Readonly<Record<Exclude<FieldKind, 'stageType'>, JsonSchema>
   voltsOrInf: ref('valueOrUnlimited'),
   amperes: ref('positiveValue'),
   noiseDensity: ref('valueOrZero'),
+  tolerance: ref('tolerance'),
+  toleranceMap: { type: 'object', additionalProperties: ref('tolerance') },
+  toleranceKinds: { type: 'object', properties: Object.fromEntries(PART_KINDS.map((kind) => [kind, ref('tolerance')])), additionalProperties: false },
   hertzOrInf: ref('valueOrUnlimited'),
   voltsPerSecondOrInf: ref('valueOrUnlimited'),
   dimensionless: { type: 'number', exclusiveMinimum: 0 },
@@ -86,6 +90,7 @@ export function buildDesignSchema(): JsonSchema {
     $defs: {
       positiveValue: { anyOf: [{ type: 'number', exclusiveMinimum: 0 }, { type: 'string', minLength: 1 }], description: VALUE_TEXT },
       valueOrZero: { anyOf: [{ type: 'number', minimum: 0 }, { type: 'string', minLength: 1 }], description: VALUE_TEXT },
+      tolerance: { anyOf: [{ type: 'number', minimum: 0, maximum: 0.9 }, { type: 'string', pattern: '^\\s*(\\d+(\\.\\d*)?|\\.\\d+)\\s*%\\s*$' }, { const: 'datasheet' }], description: 'A tolerance: "5%", 0.05 or "datasheet"' },
       valueOrUnlimited: { anyOf: [ref('positiveValue'), { const: 'inf' }, { type: 'null' }], description: `${VALUE_TEXT}; "inf" = unlimited` },
       pot: objectSchema(POT_FIELDS),
       diodeParams: objectSchema(DIODE_FIELDS),

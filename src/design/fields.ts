@@ -19,6 +19,9 @@ export type FieldKind =
   | 'voltsOrInf'
   | 'amperes'
   | 'noiseDensity' // V/sqrt(Hz) or A/sqrt(Hz), zero or more
+  | 'tolerance' // "5%", 0.05 or "datasheet"
+  | 'toleranceMap' // { field or element id: tolerance }
+  | 'toleranceKinds' // { part kind: tolerance }
   | 'hertzOrInf'
   | 'voltsPerSecondOrInf'
   | 'dimensionless'
@@ -58,6 +61,7 @@ const optional = (kind: FieldKind, description: string): FieldSpec => ({ kind, r
 const STAGE_HEAD: FieldTable = {
   id: required('id', 'Unique stage name (letters, digits, - and _), used by --set stageId.field=value'),
   type: required('stageType', 'Stage type'),
+  tolerance: optional('toleranceMap', 'Tolerances of this stage\'s parts for spread, by field or element id, e.g. { "series": "1%" }'),
 };
 
 /** A `circuit` stage: any schematic as a list of elements (see ELEMENT_FIELDS). */
@@ -130,6 +134,7 @@ export const STAGE_TYPES = Object.keys(STAGE_FIELDS) as StageType[];
 const ELEMENT_HEAD: FieldTable = {
   id: required('id', 'Unique element name within the stage (letters, digits, - and _), used by --set stageId.elementId.field=value'),
   type: required('elementType', 'Element type'),
+  tolerance: optional('tolerance', 'This part\'s tolerance for spread: "1%", 0.01 or "datasheet"'),
 };
 
 const nodesInOrder = (order: string): FieldSpec => required('nodes', `Nodes, in order: ${order}`);
@@ -191,6 +196,7 @@ export const DESIGN_FIELDS: FieldTable = {
   temperature: optional('temperature', 'Temperature in degrees C for the diode thermal voltage (default 25)'),
   knobs: optional('knobPositions', 'Knob positions 0..1 (0 = fully counter-clockwise); unlisted knobs sit at 0.5'),
   parts: optional('parts', 'Extra diode and op-amp parts, in the parts-file format'),
+  tolerances: optional('toleranceKinds', 'Part tolerances for spread by kind, e.g. { "resistor": "1%", "capacitor": "5%", "diode": "datasheet" } (defaults: resistor 5 %, capacitor 10 %, pot 20 %, semiconductors datasheet)'),
   stages: required('stages', 'Stages in signal order'),
 };
 

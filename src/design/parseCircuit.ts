@@ -9,6 +9,7 @@ import { childPath } from './locator.js';
 import { lookupBjt, lookupJfet, lookupOpamp, parseBjtEntry, parseJfetEntry } from './parts.js';
 import { isRawObject, readBoolean, readObject, readString, rejectUnknownFields, requireField, showRaw, type RawObject } from './rawReaders.js';
 import { readDiode, readTaper, STAGE_ID_PATTERN, useKnob, type StageParseContext } from './stageReaders.js';
+import { parseTolerance } from './tolerances.js';
 import { suggestionText } from './suggest.js';
 import { RESERVED_NODES, type CircuitElement, type CircuitStage, type ElementType } from './types.js';
 import { parseValue } from './values.js';
@@ -91,6 +92,7 @@ function parseElement(raw: unknown, path: string, stageId: string, ctx: StagePar
   const type = readElementType(object, path, ctx);
   const id = readElementId(object, path, ctx);
   rejectUnknownFields(object, fieldNames(ELEMENT_FIELDS[type]), path, ctx.where, `a ${type}`);
+  if (object.tolerance !== undefined) ctx.tolerances.set(`${stageId}.${id}`, parseTolerance(object.tolerance, childPath(path, 'tolerance'), ctx.where));
   const e = new ElementReader(object, path, id, type, stageId, ctx);
   const where = (key: string): string => ctx.where.at(e.at(key));
   switch (type) {

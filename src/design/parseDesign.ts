@@ -17,6 +17,7 @@ import { closestName, suggestionText } from './suggest.js';
 import type { Design, Resistance, Stage } from './types.js';
 import { parseValue } from './values.js';
 import { DEFAULT_KNOB_POSITION } from './taper.js';
+import { parseToleranceKinds } from './tolerances.js';
 
 export const SUPPLY_MIN_VOLTS = 3;
 export const SUPPLY_MAX_VOLTS = 48;
@@ -96,7 +97,7 @@ export function parseDesignObject(raw: unknown, where: Locator, parts: PartsLibr
   const design = readObject(raw, '', where, 'a design');
   rejectUnknownFields(design, fieldNames(DESIGN_FIELDS), '', where, 'the design');
   const library = design.parts === undefined ? parts : addPartsFromObject(copyPartsLibrary(parts), design.parts, 'parts', where);
-  const ctx: StageParseContext = { where, parts: library, knobUses: new Map() };
+  const ctx: StageParseContext = { where, parts: library, knobUses: new Map(), tolerances: new Map() };
   const supplyVolts = readSupplyVolts(requireField(design, 'supply', '', where, 'the design'), where);
   const temperatureC =
     design.temperature === undefined
@@ -105,7 +106,8 @@ export function parseDesignObject(raw: unknown, where: Locator, parts: PartsLibr
   const name = design.name === undefined ? defaultDesignName(where.fileName) : readString(design.name, 'name', where, 'a design name');
   const stages = parseStages(requireField(design, 'stages', '', where, 'the design'), ctx);
   const knobs = parseKnobs(design.knobs, ctx.knobUses, where);
-  return { name, supplyVolts, temperatureC, knobs, stages };
+  const tolerances = { byKind: parseToleranceKinds(design.tolerances, where), byPart: ctx.tolerances };
+  return { name, supplyVolts, temperatureC, knobs, stages, tolerances };
 }
 
 /** Design JSON text (from `fileName`) to a typed design, with `--set` overrides applied first. */

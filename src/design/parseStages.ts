@@ -19,6 +19,7 @@ import {
 import { suggestionText } from './suggest.js';
 import { parseCircuitStage } from './parseCircuit.js';
 import { readDiode, readTaper, STAGE_ID_PATTERN, useKnob, type StageParseContext } from './stageReaders.js';
+import { parseTolerance } from './tolerances.js';
 import type { ClipperStage, DiodeParams, GainStage, Pot, Resistance, Stage, StageType, Taper } from './types.js';
 import { parseValue } from './values.js';
 
@@ -208,5 +209,20 @@ export function parseStage(raw: unknown, path: string, ctx: StageParseContext): 
   const type = readStageType(object, path, ctx.where);
   const id = readStageId(object, path, ctx.where);
   rejectUnknownFields(object, fieldNames(STAGE_FIELDS[type]), path, ctx.where, `a ${type} stage`);
-  return parseTypedStage(type, new StageReader(object, path, id, ctx));
+  const stage = parseTypedStage(type, new StageReader(object, path, id, ctx));
+  if (object.tolerance !== undefined) readStageTolerances(object.tolerance, childPath(path, 'tolerance'), stage, ctx);
+  return stage;
+}
+
+/** A stage's `tolerance` map: its keys are the stage's part fields (a circuit stage's: element ids). */
+function readStageTolerances(value: unknown, path: string, stage: Stage, ctx: StageParseContext): void {
+  const parts =
+    stage.type === 'circuit'
+      ? stage.elements.map((element) => element.id)
+      : fieldNames(STAGE_FIELDS[stage.type]).filter((field) => !['id', 'type', 'tolerance', 'knob', 'taper', 'reverse', 'up', 'down', 'feedbackUp', 'feedbackDown', 'railClipping'].includes(field));
+  for (const [key, tolerance] of Object.entries(readObject(value, path, ctx.where, 'tolerances by part'))) {
+    const keyPath = childPath(path, key);
+    if (!parts.includes(key)) throw new UserError(`${ctx.where.at(keyPath)}: "${key}" is not a part of stage "${stage.id}" ${suggestionText(key, parts)}`);
+    ctx.tolerances.set(`${stage.id}.${key}`, parseTolerance(tolerance, keyPath, ctx.where));
+  }
 }

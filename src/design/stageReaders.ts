@@ -8,6 +8,7 @@ import { lookupDiode, parseDiodeEntry, type PartsLibrary } from './parts.js';
 import { isRawObject, readString, showRaw } from './rawReaders.js';
 import { suggestionText } from './suggest.js';
 import type { DiodeParams, Taper } from './types.js';
+import type { Tolerance } from './tolerances.js';
 
 const TAPERS: readonly Taper[] = ['linear', 'audio'];
 export const STAGE_ID_PATTERN = /^[A-Za-z_][A-Za-z0-9_-]*$/;
@@ -18,6 +19,8 @@ export interface StageParseContext {
   parts: PartsLibrary;
   /** knob name -> JSON path of the first pot that uses it */
   knobUses: Map<string, string>;
+  /** "stageId.field" or "stageId.elementId" -> the tolerance the design gives that part (spread). */
+  tolerances: Map<string, Tolerance>;
 }
 
 export function readTaper(value: unknown, path: string, where: Locator): Taper {

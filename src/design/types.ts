@@ -3,6 +3,7 @@
  * knobs); `resolveDesign` turns it into `Design<number>` for a given set of knob positions, which is
  * what the stage models are built from. All values are SI base units: ohms, farads, volts, amperes.
  */
+import type { DesignTolerances } from './tolerances.js';
 
 export type Taper = 'linear' | 'audio';
 
@@ -237,6 +238,8 @@ export interface Design<R = Resistance> {
   temperatureC: number;
   knobs: Record<string, number>; // positions 0..1
   stages: Stage<R>[];
+  /** Part tolerances for `spread` (absent: the defaults of tolerances.ts). */
+  tolerances?: DesignTolerances;
 }
 
 /** What every stage model needs besides its own spec. */
