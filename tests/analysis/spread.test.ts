@@ -48,6 +48,31 @@ describe('spread draws', () => {
   });
 });
 
+describe('spread against first-order propagation', () => {
+  test('zero tolerances give zero spread: every build is the nominal design', () => {
+    const exact = parseDesignText(lowpassDesign({ tolerances: { resistor: 0, capacitor: 0 } }), 'rc.json', parts);
+    const report = runSpread(exact, { runs: 5, seed: 1, oversample: 1 });
+    for (const [name, stats] of Object.entries(report.figures)) {
+      if (stats.std === null) continue;
+      const scale = Math.max(1, Math.abs(report.nominal[name] ?? 0));
+      expect(stats.std, name).toBeLessThan(1e-12 * scale); // identical builds; only summation rounding remains
+      expectClose(stats.p05!, report.nominal[name]!, { atol: 1e-12 * scale });
+    }
+    expect(report.sensitivity).toEqual([]);
+  });
+
+  test('the gain spread of a non-inverting stage: u(G) / G = (Rf / (Rf + Rg)) sqrt(u_r(Rf)^2 + u_r(Rg)^2)', () => {
+    // G = 1 + Rf / Rg (ideal op-amp, no capacitors): dG = (Rf / Rg) (dRf / Rf - dRg / Rg), so to first
+    // order (GUM 5.1.2) u(G) / G = (Rf / (Rf + Rg)) sqrt(u_r(Rf)^2 + u_r(Rg)^2), with u_r = 5 % / 3 for each
+    // resistor (a Gaussian clipped at 3 sigma keeps 98.7 % of its sigma).
+    const text = JSON.stringify({ name: 'g', supply: 9, stages: [{ id: 'amp', type: 'gain', opamp: 'ideal', rf: '90k', rg: '10k' }] });
+    const report = runSpread(parseDesignText(text, 'g.json', parts), { runs: 150, seed: 11, oversample: 1 });
+    const relative = (90 / 100) * Math.sqrt(2) * (0.05 / 3) * 0.987;
+    expectClose(report.figures.gainDb.std!, (20 / Math.LN10) * relative, { rtol: 0.15 }); // 150 builds: the std estimate's own spread is about 6 %
+    expectClose(report.nominal.gainDb!, 20, { atol: 1e-3 }); // 20 log10(1 + 90k / 10k)
+  });
+});
+
 describe('tolerances in the design file', () => {
   test('by kind, per stage field, and beside a circuit element; the closest wins', () => {
     const design = parseDesignText(lowpassDesign({ tolerances: { resistor: '1%', capacitor: 0.02 } }, { tolerance: { c: '0.5 %' } }), 'rc.json', parts);

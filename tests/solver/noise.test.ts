@@ -49,6 +49,34 @@ describe('thermal noise of resistor networks', () => {
   });
 });
 
+describe('Johnson-Nyquist totals', () => {
+  test('a lone resistor gives sqrt(4kTRB) over the band', () => {
+    const lone = stage([{ id: 'r', type: 'resistor', nodes: ['in', 'out'], ohms: 47e3 }]);
+    const report = designNoise(design(lone), { source: null, sourceLabel: 'short', referenceVolts: 1 });
+    // The band integral is a trapezoidal rule in ln f on a 1/12-octave grid: 1.4e-4 high for a flat density.
+    expectClose(report.unweightedVolts, Math.sqrt(FOUR_KT * 47e3 * (20000 - 20)), { rtol: 3e-4 });
+  });
+
+  test('R with C to ground integrates to sqrt(kT/C) over all frequencies, whatever R', () => {
+    // kT/C noise: the integral of 4kTR / (1 + (2 pi f R C)^2) over 0..inf is kT/C.
+    const c = 1e-9;
+    for (const r of [1e3, 1e5]) {
+      const rc = stage([
+        { id: 'r', type: 'resistor', nodes: ['in', 'out'], ohms: r },
+        { id: 'c', type: 'capacitor', nodes: ['out', 'gnd'], farads: c },
+      ]);
+      const { system, operatingPoint } = analyseCircuitStage(rc, circuitContext(), {});
+      const fc = 1 / (2 * Math.PI * r * c);
+      // Log grid from fc / 1e4 to fc x 1e4 (the rest holds 1e-4 of the total), trapezoidal in ln f.
+      const hz = Array.from({ length: 801 }, (_, i) => fc * 10 ** (-4 + i / 100));
+      const density = stageOutputNoise(system, operatingPoint, hz, TEMPERATURE_C, null).totalSquared;
+      let total = 0;
+      for (let i = 0; i + 1 < hz.length; i++) total += 0.5 * (density[i] * hz[i] + density[i + 1] * hz[i + 1]) * Math.log(hz[i + 1] / hz[i]);
+      expectClose(total, (FOUR_KT / 4) / c, { rtol: 2e-3 });
+    }
+  });
+});
+
 describe('op-amp noise', () => {
   // A flat, quiet-ish part: en 10 nV/rtHz, in 1 pA/rtHz, GBW far above the band.
   const part: OpampParams = {
