@@ -24,6 +24,8 @@ import { predictResponse } from './response.js';
 /** Octave points of the response figures (IEC 61260 nominal octave bands, 31.5 Hz-16 kHz). */
 export const SPREAD_OCTAVES_HZ: readonly number[] = [31.5, 63, 125, 250, 500, 1000, 2000, 4000, 8000, 16000];
 const SWEEP = { minVolts: 0.005, maxVolts: 2, points: 25 };
+/** Every design's figures; a design with `circuit` stages adds `operatingPoint.<stage>.<node>`. */
+export const SPREAD_FIGURES: readonly string[] = ['gainDb', 'thdPercent', 'onset1Volts', 'onset3Volts', 'onset10Volts', ...SPREAD_OCTAVES_HZ.map((hz) => `responseDb@${hz}Hz`)];
 /** Parts explaining less than this share of a figure's variance are left out of `sensitivity`. */
 const MIN_SHARE = 0.01;
 /** Parts listed per figure in `sensitivity`. */
@@ -57,8 +59,8 @@ export interface SpreadReport {
   nominal: Figures;
   figures: Record<string, FigureStats>;
   sensitivity: { part: string; figure: string; share: number }[];
-  /** Every build's figures and part deviations, for percentile builds and plots. */
-  builds: { deviations: Record<string, number>; figures: Figures }[];
+  /** Every build's figures, part deviations and `--set` overrides (op-amp draws cannot be stated there), for percentile builds and plots. */
+  builds: { deviations: Record<string, number>; overrides: string[]; figures: Figures }[];
 }
 
 export interface SpreadOptions {
@@ -96,6 +98,8 @@ function toleranceOf(design: Design, key: string, kind: PartKind): Tolerance {
 class BuildDrawer {
   readonly parts: SpreadPart[] = [];
   readonly deviations: Record<string, number> = {};
+  /** The build as `--set` overrides (parts whose draw a design file can state: all but op-amps). */
+  readonly overrides: string[] = [];
   private readonly listing: boolean;
 
   constructor(
@@ -110,19 +114,26 @@ class BuildDrawer {
     this.deviations[part] = deviation;
   }
 
-  /** A value with a fractional tolerance (or "datasheet", which plain passives do not have: held). */
-  value(part: string, field: string, kind: PartKind, nominal: number): number {
+  /**
+   * A value with a fractional tolerance (or "datasheet", which plain passives do not have: held).
+   * `part` is also its `--set` key unless `setKey` says otherwise; `field` names its tolerance entry.
+   */
+  value(part: string, field: string, kind: PartKind, nominal: number, setKey = part): number {
     const tolerance = toleranceOf(this.design, field, kind);
     const deviation = typeof tolerance === 'number' && this.normal !== null ? fractionalDeviation(this.normal, tolerance) : 0;
     this.note(part, kind, tolerance, deviation);
-    return nominal * (1 + deviation);
+    const drawn = nominal * (1 + deviation);
+    if (deviation !== 0) this.overrides.push(`${setKey}=${drawn}`);
+    return drawn;
   }
 
-  resistance(stageId: string, field: string, r: Resistance): Resistance {
-    if (typeof r === 'number') return r === 0 ? 0 : this.value(`${stageId}.${field}`, `${stageId}.${field}`, 'resistor', r);
+  /** A resistor field, or a pot object's fixed part and track (`--set stage.field.fixed`, `.pot`; a tone stage's own `fixed` and `pot`). */
+  resistance(stageId: string, field: string | null, r: Resistance): Resistance {
+    const key = field === null ? stageId : `${stageId}.${field}`;
+    if (typeof r === 'number') return r === 0 ? 0 : this.value(key, key, 'resistor', r);
     const pot: Pot = { ...r };
-    if (r.fixedOhms > 0) pot.fixedOhms = this.value(`${stageId}.${field}.fixed`, `${stageId}.${field}`, 'resistor', r.fixedOhms);
-    pot.potOhms = this.value(`${stageId}.${field}.pot`, `${stageId}.${field}`, 'pot', r.potOhms);
+    if (r.fixedOhms > 0) pot.fixedOhms = this.value(`${key}.fixed`, field === null ? `${key}.fixed` : key, 'resistor', r.fixedOhms);
+    pot.potOhms = this.value(`${key}.pot`, field === null ? `${key}.pot` : key, 'pot', r.potOhms);
     return pot;
   }
 
@@ -131,13 +142,17 @@ class BuildDrawer {
   }
 
   /** A diode: a numeric tolerance scales Is (the library has no datasheet ranges for diodes: "datasheet" holds it). */
-  diode(part: string, diode: DiodeParams): DiodeParams {
+  diode(part: string, diode: DiodeParams, setKey = part): DiodeParams {
     const tolerance = toleranceOf(this.design, part, 'diode');
-    if (typeof tolerance !== 'number') {
+    if (typeof tolerance !== 'number' || this.normal === null) {
       this.note(part, 'diode', tolerance, 0);
       return diode;
     }
-    return { ...diode, saturationCurrent: this.value(part, part, 'diode', diode.saturationCurrent) };
+    const deviation = fractionalDeviation(this.normal, tolerance);
+    this.note(part, 'diode', tolerance, deviation);
+    const drawn = { ...diode, saturationCurrent: diode.saturationCurrent * (1 + deviation) };
+    if (deviation !== 0) this.overrides.push(`${setKey}=${JSON.stringify({ saturationCurrent: drawn.saturationCurrent, ideality: drawn.ideality, seriesResistance: drawn.seriesResistance })}`);
+    return drawn;
   }
 
   /** An op-amp: a numeric tolerance scales GBW and slew rate together (no datasheet ranges in the library yet: "datasheet" holds it). */
@@ -155,13 +170,13 @@ class BuildDrawer {
     const part = `${stageId}.${element.id}`;
     switch (element.type) {
       case 'resistor':
-        return { ...element, ohms: this.value(part, part, 'resistor', element.ohms) };
+        return { ...element, ohms: this.value(part, part, 'resistor', element.ohms, `${part}.value`) };
       case 'capacitor':
-        return { ...element, farads: this.value(part, part, 'capacitor', element.farads) };
+        return { ...element, farads: this.value(part, part, 'capacitor', element.farads, `${part}.value`) };
       case 'pot':
-        return { ...element, ohms: this.value(part, part, 'pot', element.ohms) };
+        return { ...element, ohms: this.value(part, part, 'pot', element.ohms, `${part}.value`) };
       case 'diode':
-        return { ...element, diode: this.diode(part, element.diode) };
+        return { ...element, diode: this.diode(part, element.diode, `${part}.part`) };
       case 'opamp':
         return { ...element, opamp: this.opamp(part, element.opamp) };
       case 'npn':
@@ -174,6 +189,8 @@ class BuildDrawer {
         }
         const bjt = { ...element.bjt, betaForward: rangedValue(draw, element.bjt.betaForward, element.bjt.ranges.betaForward), saturationCurrent: rangedValue(draw, element.bjt.saturationCurrent, element.bjt.ranges.saturationCurrent) };
         this.note(part, 'bjt', tolerance, bjt.betaForward / element.bjt.betaForward - 1);
+        const { polarity, saturationCurrent, betaForward, betaReverse, ideality } = bjt;
+        this.overrides.push(`${part}.part=${JSON.stringify({ polarity, saturationCurrent, betaForward, betaReverse, ideality })}`);
         return { ...element, bjt };
       }
       case 'njfet':
@@ -186,6 +203,8 @@ class BuildDrawer {
         }
         const jfet = { ...element.jfet, idss: rangedValue(draw, element.jfet.idss, element.jfet.ranges.idss), pinchOff: rangedValue(draw, element.jfet.pinchOff, element.jfet.ranges.pinchOff) };
         this.note(part, 'jfet', tolerance, jfet.idss / element.jfet.idss - 1);
+        const { polarity, idss, pinchOff, lambda } = jfet;
+        this.overrides.push(`${part}.part=${JSON.stringify({ polarity, idss, pinchOff, lambda })}`);
         return { ...element, jfet };
       }
     }
@@ -211,7 +230,7 @@ class BuildDrawer {
       case 'clipper':
         return { ...stage, series: this.resistance(id, 'series', stage.series), cap: this.capacitance(id, 'cap', stage.cap), diode: this.diode(`${id}.diode`, stage.diode), downDiode: this.diode(`${id}.downDiode`, stage.downDiode) };
       case 'tone':
-        return { ...stage, r: this.resistance(id, 'r', stage.r), cap: this.value(`${id}.cap`, `${id}.cap`, 'capacitor', stage.cap) };
+        return { ...stage, r: this.resistance(id, null, stage.r), cap: this.value(`${id}.cap`, `${id}.cap`, 'capacitor', stage.cap) };
       case 'lowpass':
       case 'highpass':
         return { ...stage, r: this.resistance(id, 'r', stage.r), c: this.value(`${id}.c`, `${id}.c`, 'capacitor', stage.c) };
@@ -294,7 +313,7 @@ export function runSpread(design: Design, options: SpreadOptions): SpreadReport 
   for (let run = 0; run < options.runs; run++) {
     const drawer = new BuildDrawer(design, normal);
     const figures = buildFigures(resolveDesign(drawer.build()), options.oversample);
-    builds.push({ deviations: drawer.deviations, figures });
+    builds.push({ deviations: drawer.deviations, overrides: drawer.overrides, figures });
     options.onProgress?.((run + 1) / options.runs);
   }
   const names = Object.keys(nominal);
@@ -324,4 +343,37 @@ export function runSpread(design: Design, options: SpreadOptions): SpreadReport 
     sensitivity,
     builds,
   };
+}
+
+/**
+ * The figure that spreads most, as a relative amplitude: a dB figure's 5-95 % width w as 10^(w/20) - 1,
+ * any other figure's width over its nominal magnitude. Operating points are left out (not a sound).
+ */
+export function mostSpreadFigure(report: SpreadReport): string | null {
+  let best: string | null = null;
+  let bestWidth = -1;
+  for (const [name, stats] of Object.entries(report.figures)) {
+    if (name.startsWith('operatingPoint.') || stats.p05 === null || stats.p95 === null) continue;
+    const nominal = report.nominal[name];
+    const width = name.includes('Db') ? 10 ** ((stats.p95 - stats.p05) / 20) - 1 : nominal ? (stats.p95 - stats.p05) / Math.abs(nominal) : 0;
+    if (width > bestWidth) {
+      best = name;
+      bestWidth = width;
+    }
+  }
+  return best;
+}
+
+/** The builds whose `figure` lies closest to its 5th and 95th percentiles. */
+export function percentileBuilds(report: SpreadReport, figure: string): { low: SpreadReport['builds'][number]; high: SpreadReport['builds'][number] } | null {
+  const stats = report.figures[figure];
+  if (stats === undefined || stats.p05 === null || stats.p95 === null) return null;
+  const closest = (target: number): SpreadReport['builds'][number] =>
+    report.builds.reduce((best, build) => {
+      const value = build.figures[figure];
+      const bestValue = best.figures[figure];
+      if (value === null || value === undefined) return best;
+      return bestValue === null || bestValue === undefined || Math.abs(value - target) < Math.abs(bestValue - target) ? build : best;
+    });
+  return { low: closest(stats.p05), high: closest(stats.p95) };
 }

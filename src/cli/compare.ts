@@ -17,7 +17,9 @@ interface CompareFlags extends RenderFlagValues {
 }
 
 /** Sample-peak ceiling after loudness matching, dBFS. */
-const CEILING_DBFS = -1;
+export const CEILING_DBFS = -1;
+/** Loudness every player is matched to unless `--loudness` says otherwise (BS.1770-4 integrated). */
+export const DEFAULT_LOUDNESS_LUFS = -18;
 const LOUDNESS_MIN_LUFS = -60;
 const LOUDNESS_MAX_LUFS = 0;
 
@@ -37,7 +39,7 @@ async function chooseVariants(flags: CompareFlags): Promise<Variant[]> {
   return expandVaryMatrix(vary);
 }
 
-function printSummary(summary: CompareSummary, pagePath: string): void {
+export function printCompareSummary(summary: CompareSummary, pagePath: string): void {
   const rows = summary.takes.flatMap((take) =>
     take.entries.map((entry) => [
       take.name,
@@ -83,7 +85,7 @@ export function registerCompareCommand(program: Command): void {
     .requiredOption('-o, --output <dir>', 'output folder (created if missing)')
     .option('--vary <key=v1,v2,...>', 'values to compare for a knob or stage field (same keys as render --set); several make the full matrix', collect)
     .option('--variants <file>', 'named variants instead: {"variants": [{"label": "...", "set": {"clip.diode": "1n34a"}}]}')
-    .option('--loudness <LUFS>', 'loudness every player is matched to (BS.1770-4 integrated)', '-18')
+    .option('--loudness <LUFS>', 'loudness every player is matched to (BS.1770-4 integrated)', String(DEFAULT_LOUDNESS_LUFS))
     .option('--no-match', "keep each render's own level instead of matching loudness");
   addRenderOptions(command, 'override for every variant (like render --set); repeatable')
     .action(async (designPath: string, inputs: string[], flags: CompareFlags) => {
@@ -113,7 +115,7 @@ export function registerCompareCommand(program: Command): void {
         },
       });
       shown?.finish(true);
-      printSummary(summary, pagePath);
+      printCompareSummary(summary, pagePath);
       for (const line of summary.ceilingLimited) process.stderr.write(`clipbench: ceiling: ${line}\n`);
       for (const line of summary.failures) process.stderr.write(`clipbench: failed: ${line}\n`);
       const rendered = summary.takes.some((take) => take.entries.some((entry) => entry.kind === 'variant' && entry.file !== null));

@@ -24,10 +24,20 @@ export interface TrackedOverrides {
   overriddenPaths: Map<string, string>;
 }
 
-/** Command-line text to a JSON value: numbers (counts, knob positions) and booleans are converted. */
-function toJsonValue(text: string): unknown {
+/**
+ * Command-line text to a JSON value: numbers (counts, knob positions) and booleans are converted, and
+ * a JSON object (`{...}`) stands for an inline part, e.g. clip.diode={"saturationCurrent": 3e-9, ...}.
+ */
+function toJsonValue(text: string, option: string): unknown {
   if (NUMBER_PATTERN.test(text)) return Number(text);
   if (text === 'true' || text === 'false') return text === 'true';
+  if (text.startsWith('{')) {
+    try {
+      return JSON.parse(text) as unknown;
+    } catch (error) {
+      throw new UserError(`${option}: the value looks like an inline part but is not valid JSON (${(error as Error).message})`);
+    }
+  }
   return text;
 }
 
@@ -137,7 +147,7 @@ export function applyOverridesTracked(raw: unknown, overrides: readonly Override
   for (const { key, valueText, option } of parsed) {
     const keys = key.split('.');
     if (keys.some((part) => part === '')) throw new UserError(`${option}: malformed name (expected knob or stageId.field)`);
-    const value = toJsonValue(valueText);
+    const value = toJsonValue(valueText, option);
     const jsonPaths = keys.length === 1 ? [setKnobOrSetting(design, key, value, option, fileName)] : setStageField(design, keys, value, option, fileName, setsDownDiode);
     for (const jsonPath of jsonPaths) overriddenPaths.set(jsonPath, option);
   }

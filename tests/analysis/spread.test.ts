@@ -3,7 +3,8 @@
 // (JCGM 100:2008, the GUM, section 5.1: for y = f(x1, x2) with independent inputs, u^2(y) =
 // sum (df/dxi)^2 u^2(xi)), the design file's tolerance entries, and seeded repeatability.
 import { describe, expect, test } from 'vitest';
-import { runSpread } from '../../src/analysis/spread.js';
+import { buildFigures, runSpread } from '../../src/analysis/spread.js';
+import { resolveDesign } from '../../src/design/resolve.js';
 import { loadPartsLibrary } from '../../src/design/parts.js';
 import { parseDesignText } from '../../src/design/parseDesign.js';
 import { expectClose } from '../helpers/expectClose.js';
@@ -70,6 +71,28 @@ describe('spread against first-order propagation', () => {
     const relative = (90 / 100) * Math.sqrt(2) * (0.05 / 3) * 0.987;
     expectClose(report.figures.gainDb.std!, (20 / Math.LN10) * relative, { rtol: 0.15 }); // 150 builds: the std estimate's own spread is about 6 %
     expectClose(report.nominal.gainDb!, 20, { atol: 1e-3 }); // 20 log10(1 + 90k / 10k)
+  });
+});
+
+describe('builds as --set overrides', () => {
+  test("a build's overrides, applied to the design file, give exactly that build's figures", () => {
+    const text = JSON.stringify({
+      name: 'mixed', supply: 9, knobs: { tone: 0.3 },
+      stages: [
+        { id: 'in', type: 'input', coupling: '22n', pulldown: '1M' },
+        { id: 'amp', type: 'gain', opamp: 'ideal', rf: '47k', rg: '4k7', cg: '100n' },
+        { id: 'clip', type: 'clipper', series: '2k2', cap: '10n', diode: '1n4148', downDiode: '1n34a' },
+        { id: 'tone', type: 'tone', fixed: '1k', pot: '20k', knob: 'tone', cap: '22n' },
+      ],
+      tolerances: { diode: '20%' },
+    });
+    const report = runSpread(parseDesignText(text, 'mixed.json', parts), { runs: 2, seed: 5, oversample: 1 });
+    for (const build of report.builds) {
+      expect(build.overrides.some((o) => o.startsWith('clip.downDiode={'))).toBe(true);
+      expect(build.overrides.some((o) => o.startsWith('tone.pot='))).toBe(true);
+      const again = buildFigures(resolveDesign(parseDesignText(text, 'mixed.json', parts, build.overrides)), 1);
+      expect(again).toEqual(build.figures);
+    }
   });
 });
 

@@ -5,6 +5,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { PROJECT_ROOT, runCli } from '../helpers/cli.js';
+import { writeDemoTake } from '../compare/compareFixtures.js';
 
 const design = path.join(PROJECT_ROOT, 'fixtures', 'designs', 'soft-harbor.json');
 
@@ -29,8 +30,25 @@ describe('clipbench spread', () => {
     expect(readFileSync(path.join(dir, 'b.json'), 'utf8')).toBe(readFileSync(path.join(dir, 'a.json'), 'utf8'));
   });
 
-  it('refuses bad --runs and --seed with one line', () => {
-    for (const args of [['--runs', '2'], ['--runs', 'many'], ['--seed', '-1']]) {
+  it('--take with -o renders the nominal build and the 5th and 95th percentile builds with a listening page, nominal against the low one preset blind', async () => {
+    const dir = mkdtempSync(path.join(tmpdir(), 'clipbench-spread-take-'));
+    const take = await writeDemoTake(dir, 'take.wav', 0.5);
+    const out = path.join(dir, 'out');
+    const result = runCli(['spread', design, '--runs', '6', '--oversample', '1', '--take', take, '-o', out, '--by', 'gainDb']);
+    expect(result.status).toBe(0);
+    const summary = JSON.parse(readFileSync(path.join(out, 'summary.json'), 'utf8'));
+    expect(summary.variants.map((v: { label: string }) => v.label)).toEqual([
+      'nominal',
+      expect.stringMatching(/^5th percentile of gainDb \(/),
+      expect.stringMatching(/^95th percentile of gainDb \(/),
+    ]);
+    const page = readFileSync(path.join(out, 'index.html'), 'utf8');
+    expect(page).toMatch(/data-role="pick-1">[^]*?<option value="1" selected>/);
+    expect(page).toMatch(/data-role="pick-2">[^]*?<option value="2" selected>/);
+  });
+
+  it('refuses bad --runs, --seed and --by, and --take without -o, with one line', () => {
+    for (const args of [['--runs', '2'], ['--runs', 'many'], ['--seed', '-1'], ['--by', 'gain'], ['--take', 'x.wav']]) {
       const result = runCli(['spread', design, ...args]);
       expect(result.status).toBe(2);
       expect(result.stderr.trim().split('\n')).toHaveLength(1);
