@@ -155,15 +155,26 @@ class BuildDrawer {
     return drawn;
   }
 
-  /** An op-amp: a numeric tolerance scales GBW and slew rate together (no datasheet ranges in the library yet: "datasheet" holds it). */
+  /**
+   * An op-amp: on "datasheet", GBW and slew rate each drawn within the part's ranges (min to typ in the
+   * library; held where it gives none); a numeric tolerance scales them together. Not expressible as
+   * `--set` (op-amps are library parts), so op-amp draws are left out of a build's overrides.
+   */
   opamp(part: string, opamp: OpampParams): OpampParams {
     const tolerance = toleranceOf(this.design, part, 'opamp');
-    if (typeof tolerance !== 'number' || !Number.isFinite(opamp.gbwHz)) {
+    if (this.normal === null || !Number.isFinite(opamp.gbwHz)) {
       this.note(part, 'opamp', tolerance, 0);
       return opamp;
     }
-    const gbwHz = this.value(part, part, 'opamp', opamp.gbwHz);
-    return { ...opamp, gbwHz, slewRateVoltsPerSecond: opamp.slewRateVoltsPerSecond * (gbwHz / opamp.gbwHz) };
+    if (tolerance === 'datasheet') {
+      const gbwHz = rangedValue(this.normal, opamp.gbwHz, opamp.ranges.gbwHz);
+      const slewRateVoltsPerSecond = rangedValue(this.normal, opamp.slewRateVoltsPerSecond, opamp.ranges.slewRateVoltsPerSecond);
+      this.note(part, 'opamp', tolerance, gbwHz / opamp.gbwHz - 1);
+      return { ...opamp, gbwHz, slewRateVoltsPerSecond };
+    }
+    const deviation = fractionalDeviation(this.normal, tolerance);
+    this.note(part, 'opamp', tolerance, deviation);
+    return { ...opamp, gbwHz: opamp.gbwHz * (1 + deviation), slewRateVoltsPerSecond: opamp.slewRateVoltsPerSecond * (1 + deviation) };
   }
 
   element(stageId: string, element: CircuitElement): CircuitElement {

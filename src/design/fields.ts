@@ -221,6 +221,7 @@ export const OPAMP_FIELDS: FieldTable = {
   commonModeHighVolts: optional('voltsOrZero', 'How close to the positive rail the inputs may go, volts (omitted: not stated)'),
   noiseVoltage: optional('noiseDensity', 'Input voltage noise density at 1 kHz, V/sqrt(Hz), e.g. "18n" (omitted: not stated, no op-amp noise)'),
   noiseCurrent: optional('noiseDensity', 'Input current noise density at 1 kHz, A/sqrt(Hz), e.g. "10f" (omitted: not stated)'),
+  ranges: optional('ranges', 'Datasheet ranges for tolerance runs, e.g. { "gbwHz": { "min": 2.5e6, "max": 4e6 } } (min to typ)'),
   source: optional('text', 'Where the numbers come from'),
 };
 

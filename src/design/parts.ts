@@ -78,13 +78,17 @@ export function parseOpampEntry(raw: unknown, name: string, path: string, where:
     commonModeHighVolts: optionalVolts(entry.commonModeHighVolts, at('commonModeHighVolts'), where),
     noiseVoltage: entry.noiseVoltage === undefined ? null : parseValue(entry.noiseVoltage, where.at(at('noiseVoltage')), 'volt', { allowZero: true }),
     noiseCurrent: entry.noiseCurrent === undefined ? null : parseValue(entry.noiseCurrent, where.at(at('noiseCurrent')), 'ampere', { allowZero: true }),
+    ranges: {},
     source: entry.source === undefined ? defaultSource : readString(entry.source, at('source'), where, 'a source note'),
   };
   if (opamp.supplyMaxVolts < opamp.supplyMinVolts) {
     throw new UserError(`${where.at(at('supplyMaxVolts'))}: ${opamp.supplyMaxVolts} V is below supplyMinVolts (${opamp.supplyMinVolts} V)`);
   }
+  opamp.ranges = readRanges(entry.ranges, OPAMP_RANGE_KEYS, { gbwHz: opamp.gbwHz, slewRateVoltsPerSecond: opamp.slewRateVoltsPerSecond }, at('ranges'), where, what);
   return opamp;
 }
+
+const OPAMP_RANGE_KEYS = ['gbwHz', 'slewRateVoltsPerSecond'] as const;
 
 /** Pinch-off voltages beyond this are not small-signal JFETs (volts). */
 const PINCH_OFF_MAX_VOLTS = 20;

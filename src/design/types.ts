@@ -46,6 +46,8 @@ export interface OpampParams {
   noiseVoltage: number | null;
   /** Input current noise density at 1 kHz, A/sqrt(Hz) (datasheet i_n); null = not stated. */
   noiseCurrent: number | null;
+  /** Datasheet ranges (typically min to typ) of GBW and slew rate, for tolerance runs. */
+  ranges: Partial<Record<'gbwHz' | 'slewRateVoltsPerSecond', ParamRange>>;
   source: string;
 }
 

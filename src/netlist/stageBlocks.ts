@@ -20,7 +20,6 @@ import type {
   DiodeParams,
   GainStage,
   InputStage,
-  OpampParams,
   RcStage,
   Stage,
   ToneStage,
@@ -103,14 +102,9 @@ export const STAGE_BLOCKS: { readonly [T in NamedStage['type']]: BlockBuilder<Ex
   volume: volumeBlock,
 };
 
-/** The named stage `stage` as a circuit stage (its elements' ids prefixed with the stage id's parts as `stage.part`). */
+/** The named stage `stage` as a circuit stage (element ids are the stage's field names: `amp` + `rf` reads "amp.rf" in reports). */
 export function namedStageCircuit(stage: NamedStage, knobs: Readonly<Record<string, number>>): CircuitStage {
   const build = STAGE_BLOCKS[stage.type] as BlockBuilder<NamedStage>;
   const coupling: CircuitElement[] = [capacitor('#couple', IN, COUPLED, COUPLING_FARADS), resistor('#bias', COUPLED, REFERENCE_NODE, COUPLING_BIAS_OHMS)];
   return { id: stage.id, type: 'circuit', input: IN, output: OUT, elements: [...coupling, ...build(stage, knobs)] };
-}
-
-/** An op-amp part's name for reports, e.g. "amp.opamp (tl072)". */
-export function opampLabel(stageId: string, elementId: string, opamp: OpampParams): string {
-  return `${stageId}.${elementId} (${opamp.name})`;
 }

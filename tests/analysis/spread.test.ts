@@ -74,6 +74,21 @@ describe('spread against first-order propagation', () => {
   });
 });
 
+describe('semiconductors on "datasheet"', () => {
+  test("an op-amp's GBW is drawn between the library's datasheet minimum and its typical value", () => {
+    // TL072 in the parts library: GBW 4 MHz typ, 2.5 MHz min (datasheet, as its source note says).
+    const text = JSON.stringify({ name: 'g', supply: 9, stages: [{ id: 'amp', type: 'gain', opamp: 'tl072', rf: '100k', rg: '1k' }] });
+    const report = runSpread(parseDesignText(text, 'g.json', parts), { runs: 12, seed: 2, oversample: 1 });
+    const deviations = report.builds.map((b) => b.deviations['amp.opamp']);
+    for (const d of deviations) {
+      expect(d).toBeLessThanOrEqual(0);
+      expect(d).toBeGreaterThanOrEqual(2.5 / 4 - 1);
+    }
+    expect(deviations.some((d) => d < 0)).toBe(true);
+    expect(report.tolerances.parts.find((p) => p.part === 'amp.opamp')?.tolerance).toBe('datasheet');
+  });
+});
+
 describe('builds as --set overrides', () => {
   test("a build's overrides, applied to the design file, give exactly that build's figures", () => {
     const text = JSON.stringify({

@@ -47,6 +47,7 @@ export const IDEAL_OPAMP: OpampParams = {
   commonModeHighVolts: null,
   noiseVoltage: null,
   noiseCurrent: null,
+  ranges: {},
   source: 'test',
 };
 
@@ -65,5 +66,6 @@ export const TL072: OpampParams = {
   commonModeHighVolts: null,
   noiseVoltage: null,
   noiseCurrent: null,
+  ranges: {},
   source: 'test',
 };

@@ -81,7 +81,7 @@ describe('op-amp noise', () => {
   // A flat, quiet-ish part: en 10 nV/rtHz, in 1 pA/rtHz, GBW far above the band.
   const part: OpampParams = {
     name: 'flat', gbwHz: 1e12, slewRateVoltsPerSecond: 1e12, headroomLowVolts: 0, headroomHighVolts: 0, supplyMinVolts: 0, supplyMaxVolts: 100,
-    openLoopGain: 1e9, commonModeLowVolts: null, commonModeHighVolts: null, noiseVoltage: 10e-9, noiseCurrent: 1e-12, source: 'test',
+    openLoopGain: 1e9, commonModeLowVolts: null, commonModeHighVolts: null, noiseVoltage: 10e-9, noiseCurrent: 1e-12, ranges: {}, source: 'test',
   };
   const rf = 90e3;
   const rg = 10e3;

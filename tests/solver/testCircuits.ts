@@ -57,6 +57,7 @@ export const LM358: OpampParams = {
   commonModeHighVolts: null,
   noiseVoltage: null,
   noiseCurrent: null,
+  ranges: {},
   source: 'test',
 };
 
