@@ -19,6 +19,7 @@
  *   around 3-5 kHz with Q about 2-3 for passive pickups (common practice), here from the biquad of
  *   R. Bristow-Johnson's "Audio EQ Cookbook".
  */
+import { mulberry32 } from '../dsp/random.js';
 
 export interface DemoTakeOptions {
   sampleRate?: number;
@@ -79,23 +80,12 @@ interface PluckedNote {
   velocity: number;
 }
 
-/** mulberry32: a small 32-bit seeded generator (public domain, T. Ettinger), uniform in [0, 1). */
-class Mulberry32 {
-  private state: number;
-  constructor(seed: number) {
-    this.state = seed >>> 0;
-  }
-  next(): number {
-    this.state = (this.state + 0x6d2b79f5) >>> 0;
-    let t = this.state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  }
-  /** Uniform in [-1, 1). */
-  nextSigned(): number {
-    return 2 * this.next() - 1;
-  }
+/** Uniform deviates in [-1, 1) from a seeded generator (dsp/random.ts). */
+type SignedRandom = () => number;
+
+function signedRandom(seed: number): SignedRandom {
+  const uniform = mulberry32(seed);
+  return () => 2 * uniform() - 1;
 }
 
 /** 12-tone equal temperament, A4 = 440 Hz (ISO 16). */
@@ -108,11 +98,11 @@ function sustainT60Seconds(frequencyHz: number): number {
   return 6 * Math.sqrt(110 / frequencyHz);
 }
 
-function scheduleNotes(random: Mulberry32): PluckedNote[] {
+function scheduleNotes(random: SignedRandom): PluckedNote[] {
   const secondsPerBeat = 60 / TEMPO_BPM;
   const notes: PluckedNote[] = [];
   for (const event of PHRASE) {
-    const eventStart = PHRASE_START_SECONDS + event.startBeat * secondsPerBeat + TIMING_JITTER_SECONDS * random.nextSigned();
+    const eventStart = PHRASE_START_SECONDS + event.startBeat * secondsPerBeat + TIMING_JITTER_SECONDS * random();
     const releaseSeconds = PHRASE_START_SECONDS + (event.startBeat + event.lengthBeats) * secondsPerBeat;
     event.notes.forEach((note, stringIndex) => {
       notes.push({
@@ -120,7 +110,7 @@ function scheduleNotes(random: Mulberry32): PluckedNote[] {
         startSeconds: eventStart + stringIndex * STRUM_SPACING_SECONDS,
         releaseSeconds,
         // a downstroke loses a little force across the strings
-        velocity: event.velocity * (1 - 0.06 * stringIndex) * (1 + VELOCITY_JITTER * random.nextSigned()),
+        velocity: event.velocity * (1 - 0.06 * stringIndex) * (1 + VELOCITY_JITTER * random()),
       });
     });
   }
@@ -134,7 +124,7 @@ function scheduleNotes(random: Mulberry32): PluckedNote[] {
  * plucked string, from memory). A one-pole low-pass rounds the corner like a pick of finite width
  * (harder picking is brighter) and a little noise adds the pick's scrape.
  */
-function fillPluckShape(line: Float64Array, velocity: number, random: Mulberry32): void {
+function fillPluckShape(line: Float64Array, velocity: number, random: SignedRandom): void {
   const length = line.length;
   const clampedVelocity = Math.min(1, velocity);
   const smoothing = 0.85 - 0.35 * clampedVelocity;
@@ -145,7 +135,7 @@ function fillPluckShape(line: Float64Array, velocity: number, random: Mulberry32
     const x = (2 * i) / length; // position along the round trip, in string lengths
     const onString = x < 1 ? x : 2 - x;
     const triangle = onString < PLUCK_POSITION ? onString / PLUCK_POSITION : (1 - onString) / (1 - PLUCK_POSITION);
-    const shape = (x < 1 ? triangle : -triangle) + noiseLevel * random.nextSigned();
+    const shape = (x < 1 ? triangle : -triangle) + noiseLevel * random();
     smoothed += (1 - smoothing) * (shape - smoothed);
     line[i] = smoothed;
     mean += smoothed;
@@ -158,7 +148,7 @@ function fillPluckShape(line: Float64Array, velocity: number, random: Mulberry32
  * Adds one plucked note, as string displacement seen at the pickup, into `out`.
  * The delay line doubles as the output history for the pickup-position comb.
  */
-function addPluckedNote(out: Float64Array, note: PluckedNote, sampleRate: number, random: Mulberry32): void {
+function addPluckedNote(out: Float64Array, note: PluckedNote, sampleRate: number, random: SignedRandom): void {
   const startIndex = Math.round(note.startSeconds * sampleRate);
   if (startIndex >= out.length) return;
   const releaseIndex = Math.round(note.releaseSeconds * sampleRate);
@@ -249,7 +239,7 @@ export function synthesizeDemoTake(options: DemoTakeOptions = {}): DemoTake {
   const seed = options.seed ?? DEFAULT_SEED;
   validateOptions(sampleRate, seconds, seed);
 
-  const random = new Mulberry32(seed);
+  const random = signedRandom(seed);
   const volts = new Float64Array(Math.round(seconds * sampleRate));
   for (const note of scheduleNotes(random)) addPluckedNote(volts, note, sampleRate, random);
   applyPickupElectrics(volts, sampleRate);

@@ -1,16 +1,9 @@
 /** Deterministic test signals shared by the dsp, analysis and report tests (fixed seeds). */
 
-/** Uniform PRNG in [0, 1) (mulberry32), fixed seed. */
-export function createUniformRandom(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+import { mulberry32 } from '../../src/dsp/random.js';
+
+/** Uniform PRNG in [0, 1) (mulberry32, src/dsp/random.ts), fixed seed. */
+export const createUniformRandom = mulberry32;
 
 /** Uniform noise in [-1, 1). */
 export function uniformNoise(length: number, seed: number): Float64Array {
