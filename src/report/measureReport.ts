@@ -138,7 +138,7 @@ export async function writeMeasureHtml(path: string, report: MeasureReport): Pro
     {
       heading: 'Noise',
       paragraphs: [
-        `Output noise with the input terminated by ${report.noise.source}: resistor thermal noise (4kTR) and op-amp input noise (datasheet densities at 1 kHz, taken as white), each carried to the output through the small-signal model; powers add. A-weighting per IEC 61672-1; signal to noise against the output's fundamental at the reference tone (${report.noise.referenceVolts.toExponential(3)} V RMS).`,
+        `Output noise with the input terminated by ${report.noise.source}: resistor thermal noise (4kTR), op-amp input noise (datasheet densities at 1 kHz, taken as white), junction shot noise (2qI) and JFET channel noise, each carried to the output through the small-signal model; powers add. A-weighting per IEC 61672-1; signal to noise against the output's fundamental at the reference tone (${report.noise.referenceVolts.toExponential(3)} V RMS).`,
       ],
       tables: [
         {

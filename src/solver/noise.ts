@@ -1,26 +1,31 @@
 /**
  * Output noise of a circuit stage, linearised at its operating point (docs/models.md, "Noise"):
  * every resistor's thermal noise (Johnson-Nyquist, current density 4 k T / R across it), each
- * op-amp's input voltage and current noise (datasheet densities, taken as white), and the thermal
- * noise of the source impedance that terminates the input (4 k T Re(Ys) across it), each carried to
- * the output by the small-signal transfer at s = j w. Uncorrelated sources: their powers add.
+ * op-amp's input voltage and current noise (datasheet densities, taken as white), the shot noise of
+ * junction currents (Schottky, 2 q I: a diode string's current across it; a transistor's base and
+ * collector currents, from base and collector to emitter), a JFET's channel noise (4 k T (2/3) gm,
+ * drain to source), and the thermal noise of the source impedance that terminates the input
+ * (4 k T Re(Ys) across it), each carried to the output by the small-signal transfer at s = j w.
+ * Uncorrelated sources: their powers add.
  *
  * One adjoint solve per frequency gives every transfer at once: with Y the linearised MNA matrix at
  * j w and z solving Y^T z = e_out, a current injected into node a (returning from b) reaches the
  * output as z[a] - z[b] (Tellegen's theorem / the adjoint network, e.g. Vlach & Singhal, Computer
  * Methods for Circuit Analysis and Design, 2nd ed., ch. 9). An op-amp's input voltage noise e enters
- * the macromodel as the current gm e into its compensation node. Not modelled: shot noise of diodes and
- * transistors, flicker (1/f) noise, the op-amps' noise corners.
+ * the macromodel as the current gm e into its compensation node. Not modelled: flicker (1/f) noise,
+ * the op-amps' noise corners, the correlation of a transistor's base and collector noise.
  */
 import { UserError } from '../errors.js';
 import { GROUND } from '../netlist/assemble.js';
 import { solveComplex } from './denseLu.js';
-import type { MnaSystem } from './mna.js';
+import { jacobianLayout, type MnaSystem } from './mna.js';
+import { DeviceKind } from '../netlist/deviceKind.js';
 import type { OperatingPoint } from './operatingPoint.js';
 import { linearisedMatrices } from './smallSignal.js';
 
-/** Boltzmann constant, exact in the 2019 SI. */
+/** Boltzmann constant and elementary charge, exact in the 2019 SI. */
 const BOLTZMANN_JOULES_PER_KELVIN = 1.380649e-23;
+const ELEMENTARY_CHARGE_COULOMBS = 1.602176634e-19;
 const ZERO_CELSIUS_KELVIN = 273.15;
 
 /** What drives the input while noise is measured: a series R + L (a pickup, a resistor), or an ideal short (null). */
@@ -48,6 +53,7 @@ export function stageOutputNoise(
 ): StageNoise {
   const n = system.size;
   const { real, capacitance } = linearisedMatrices(system, operatingPoint);
+  const jacobianStarts = jacobianLayout(system).starts;
   const fourKT = 4 * BOLTZMANN_JOULES_PER_KELVIN * (temperatureC + ZERO_CELSIUS_KELVIN);
   const totalSquared = new Float64Array(frequenciesHz.length);
   const bySource = new Map<string, Float64Array>();
@@ -102,6 +108,25 @@ export function stageOutputNoise(
     };
     if (source !== null && source.ohms > 0) add(SOURCE_NOISE_LABEL, f, fourKT * sourceConductance * gainSquared(input, GROUND));
     for (const { a, b, siemens, element } of system.noisyConductances) add(`${system.stageId}.${element}`, f, fourKT * siemens * gainSquared(a, b));
+    system.deviceKinds.forEach((kind, d) => {
+      const label = `${system.stageId}.${system.deviceIds[d]}`;
+      const port = system.devicePortStart[d];
+      const amps = (k: number): number => operatingPoint.portAmps[port + k];
+      const twoQ = 2 * ELEMENTARY_CHARGE_COULOMBS;
+      if (kind === DeviceKind.Junction) {
+        add(`${label} shot noise`, f, twoQ * Math.abs(amps(0)) * gainSquared(system.portFrom[port], system.portTo[port]));
+      } else if (kind === DeviceKind.Bjt) {
+        // Ports (b,e) and (b,c): the emitter current and minus the collector's, so IC = -i(b,c), IB = i(b,e) + i(b,c).
+        const base = system.portVoltA[port];
+        const emitter = system.portVoltB[port];
+        const collector = system.portVoltB[port + 1];
+        add(`${label} shot noise`, f, twoQ * (Math.abs(amps(1)) * gainSquared(collector, emitter) + Math.abs(amps(0) + amps(1)) * gainSquared(base, emitter)));
+      } else if (kind === DeviceKind.Jfet) {
+        // Channel noise of a saturated FET, 4 k T (2/3) gm (van der Ziel), gm = dId/dVgs at rest.
+        const gm = Math.abs(operatingPoint.jacobian[jacobianStarts[d] + 2]);
+        add(`${label} channel noise`, f, fourKT * (2 / 3) * gm * gainSquared(system.portVoltA[port + 1], system.portVoltB[port + 1]));
+      }
+    });
     for (const opamp of system.opampNoise) {
       const label = `${system.stageId}.${opamp.elementId}`;
       const voltage = opamp.voltsPerRootHz * opamp.gm;

@@ -77,6 +77,25 @@ describe('Johnson-Nyquist totals', () => {
   });
 });
 
+describe('junction shot noise', () => {
+  test('a diode fed through R: (4kT/R + 2qI) across R || r_d (Schottky shot noise 2qI; Johnson 4kT/R)', () => {
+    const r = 10e3;
+    const diode = stage([
+      { id: 'rin', type: 'resistor', nodes: ['in', 'a'], ohms: 1e15 },
+      { id: 'r', type: 'resistor', nodes: ['vcc', 'a'], ohms: r },
+      { id: 'd', type: 'diode', nodes: ['a', 'gnd'], diode: { name: 'ideal junction', saturationCurrent: 1e-14, ideality: 1, seriesResistance: 0, ratedCurrent: 1, source: 'test' }, count: 1 },
+    ], 'a');
+    const { system, operatingPoint } = analyseCircuitStage(diode, circuitContext(), {});
+    const current = operatingPoint.portAmps[0];
+    const gd = operatingPoint.jacobian[0];
+    expect(current).toBeGreaterThan(0.5e-3); // about (9 V - 0.7 V) / 10k
+    const noise = stageOutputNoise(system, operatingPoint, [1000], TEMPERATURE_C, null);
+    const impedance = 1 / (1 / r + gd + 1e-12 + 1e-15); // R, the junction, gmin and rin in parallel
+    expectClose(noise.bySource.get('s.d shot noise')![0], 2 * 1.602176634e-19 * current * impedance ** 2, { rtol: 1e-6 });
+    expectClose(noise.totalSquared[0], (FOUR_KT / r + 2 * 1.602176634e-19 * current) * impedance ** 2, { rtol: 1e-5 });
+  });
+});
+
 describe('op-amp noise', () => {
   // A flat, quiet-ish part: en 10 nV/rtHz, in 1 pA/rtHz, GBW far above the band.
   const part: OpampParams = {
