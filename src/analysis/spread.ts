@@ -13,6 +13,7 @@
 import { buildChain } from '../circuit/chain.js';
 import { analyseCircuitStage } from '../circuit/circuitStage.js';
 import { resolveDesign } from '../design/resolve.js';
+import { UserError } from '../errors.js';
 import { defaultTolerances, type PartKind, type Tolerance } from '../design/tolerances.js';
 import type { CircuitElement, CircuitStage, Design, DiodeParams, OpampParams, ParamRange, Pot, Resistance, Stage } from '../design/types.js';
 import type { OversampleFactor } from '../dsp/oversampler.js';
@@ -61,6 +62,8 @@ export interface SpreadReport {
   sensitivity: { part: string; figure: string; share: number }[];
   /** Every build's figures, part deviations and `--set` overrides (op-amp draws cannot be stated there), for percentile builds and plots. */
   builds: { deviations: Record<string, number>; overrides: string[]; figures: Figures }[];
+  /** Builds the models refused (their overrides and the reason); the statistics leave them out. */
+  failedBuilds: { overrides: string[]; message: string }[];
 }
 
 export interface SpreadOptions {
@@ -321,12 +324,20 @@ export function runSpread(design: Design, options: SpreadOptions): SpreadReport 
   const nominal = buildFigures(resolveDesign(nominalDesign), options.oversample);
   const normal = normalDeviates(options.seed);
   const builds: SpreadReport['builds'] = [];
+  const failed: { overrides: string[]; message: string }[] = [];
   for (let run = 0; run < options.runs; run++) {
     const drawer = new BuildDrawer(design, normal);
-    const figures = buildFigures(resolveDesign(drawer.build()), options.oversample);
-    builds.push({ deviations: drawer.deviations, overrides: drawer.overrides, figures });
+    try {
+      const figures = buildFigures(resolveDesign(drawer.build()), options.oversample);
+      builds.push({ deviations: drawer.deviations, overrides: drawer.overrides, figures });
+    } catch (error) {
+      // A drawn build the models refuse (e.g. a circuit with no operating point) is reported, not fatal.
+      if (!(error instanceof UserError)) throw error;
+      failed.push({ overrides: drawer.overrides, message: error.message });
+    }
     options.onProgress?.((run + 1) / options.runs);
   }
+  if (builds.length === 0) throw new UserError(`spread: no build could be measured (the first: ${failed[0]?.message ?? 'none drawn'})`);
   const names = Object.keys(nominal);
   const figures = Object.fromEntries(names.map((name) => [name, statsOf(builds.map((b) => b.figures[name] ?? null))]));
   const varied = listing.parts.filter((part) => builds.some((b) => b.deviations[part.part] !== 0));
@@ -353,6 +364,7 @@ export function runSpread(design: Design, options: SpreadOptions): SpreadReport 
     figures,
     sensitivity,
     builds,
+    failedBuilds: failed,
   };
 }
 

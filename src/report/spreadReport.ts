@@ -34,6 +34,9 @@ export function formatSpreadSummary(report: SpreadReport): string {
     ...Object.keys(report.figures).map((figure) => `  ${figure}: ${sensitivityText(report, figure)}`),
   ];
   if (held.length > 0) lines.push('', `Held at typical (no datasheet range in the parts library, or tolerance 0): ${held.join(', ')}`);
+  if (report.failedBuilds.length > 0) {
+    lines.push('', `${report.failedBuilds.length} of ${report.runs} builds could not be measured and are left out, e.g.: ${report.failedBuilds[0].message}`);
+  }
   return `${lines.join('\n')}\n`;
 }
 
