@@ -7,6 +7,7 @@ import { registerAnalyzeCommand } from './analyze.js';
 import { registerCheckCommand } from './check.js';
 import { registerPartsCommand } from './parts.js';
 import { registerSpreadCommand } from './spread.js';
+import { registerFitCommand } from './fit.js';
 
 /** Every command file exports `register<Name>Command(program)`; they are wired up here in menu order. */
 export function registerCommands(program: Command): void {
@@ -17,5 +18,6 @@ export function registerCommands(program: Command): void {
   registerAnalyzeCommand(program);
   registerCheckCommand(program);
   registerSpreadCommand(program);
+  registerFitCommand(program);
   registerPartsCommand(program);
 }
