@@ -2,6 +2,7 @@
 import type { Command } from 'commander';
 import { UserError } from '../errors.js';
 import { runCompare } from '../compare/runCompare.js';
+import { DEFAULT_LOUDNESS_MATCH } from '../render/loudnessMatch.js';
 import { expandVaryMatrix, readVariantsFile, type Variant } from '../compare/variants.js';
 import type { CompareSummary } from '../compare/summary.js';
 import { formatTable, formatValue } from '../report/table.js';
@@ -17,9 +18,7 @@ interface CompareFlags extends RenderFlagValues {
 }
 
 /** Sample-peak ceiling after loudness matching, dBFS. */
-export const CEILING_DBFS = -1;
-/** Loudness every player is matched to unless `--loudness` says otherwise (BS.1770-4 integrated). */
-export const DEFAULT_LOUDNESS_LUFS = -18;
+const CEILING_DBFS = DEFAULT_LOUDNESS_MATCH.ceilingDbfs;
 const LOUDNESS_MIN_LUFS = -60;
 const LOUDNESS_MAX_LUFS = 0;
 
@@ -85,7 +84,7 @@ export function registerCompareCommand(program: Command): void {
     .requiredOption('-o, --output <dir>', 'output folder (created if missing)')
     .option('--vary <key=v1,v2,...>', 'values to compare for a knob or stage field (same keys as render --set); several make the full matrix', collect)
     .option('--variants <file>', 'named variants instead: {"variants": [{"label": "...", "set": {"clip.diode": "1n34a"}}]}')
-    .option('--loudness <LUFS>', 'loudness every player is matched to (BS.1770-4 integrated)', String(DEFAULT_LOUDNESS_LUFS))
+    .option('--loudness <LUFS>', 'loudness every player is matched to (BS.1770-4 integrated)', String(DEFAULT_LOUDNESS_MATCH.targetLufs))
     .option('--no-match', "keep each render's own level instead of matching loudness");
   addRenderOptions(command, 'override for every variant (like render --set); repeatable')
     .action(async (designPath: string, inputs: string[], flags: CompareFlags) => {

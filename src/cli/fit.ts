@@ -8,7 +8,9 @@ import type { Command } from 'commander';
 import { assertNotAnInput, createOutputFolder, writeFileAtomic } from '../audio/atomicWrite.js';
 import { calibrate } from '../audio/calibration.js';
 import { readWavFile } from '../audio/wavRead.js';
+import { advance } from '../analysis/alignTakes.js';
 import { fitDesign, type FitReport } from '../analysis/fitDesign.js';
+import { writeFitListeningPage } from '../compare/fitPage.js';
 import { applyOverrides } from '../design/overrides.js';
 import { parseJsonText } from '../design/jsonText.js';
 import { loadPartsLibrary } from '../design/parts.js';
@@ -87,6 +89,7 @@ export function registerFitCommand(program: Command): void {
       const wet = await readMono(flags.wet);
       if (dry.sampleRate !== wet.sampleRate) throw new UserError(`${flags.wet}: ${wet.sampleRate} Hz, but the dry take is ${dry.sampleRate} Hz; record at the dry take's rate`);
       const length = Math.min(dry.samples.length, wet.samples.length);
+      const wetSamples = wet.samples.subarray(0, length);
       const bar = createProgressBar('fitting');
       const report = fitDesign({
         designText,
@@ -95,7 +98,7 @@ export function registerFitCommand(program: Command): void {
         overrides: flags.set ?? [],
         free,
         dry: dry.samples.subarray(0, length),
-        wet: wet.samples.subarray(0, length),
+        wet: wetSamples,
         sampleRate: dry.sampleRate,
         wetName: flags.wet,
         oversample: parseOversample(flags.oversample),
@@ -113,7 +116,19 @@ export function registerFitCommand(program: Command): void {
         const fittedDesign = applyOverrides(parseJsonText(designText, designPath), [...(flags.set ?? []), ...report.overrides, `name=${fittedName}`], designPath);
         await writeFileAtomic(fittedPath, toJsonText(fittedDesign));
         const rendered = await runRenderJob({ designPath: fittedPath, partsPath: flags.parts, overrides: [], inputPath: flags.dry, outputDir: flags.output, oversample: parseOversample(flags.oversample), scale: { fullScaleVolts: 1 }, bits: '24', commandInputs: inputs });
-        process.stdout.write(`Fitted design: ${fittedPath}\nIts render of the dry take: ${rendered.wavPath}\n`);
+        const pagePath = await writeFitListeningPage({
+          outputDir: flags.output,
+          designPath,
+          designName: path.basename(designPath, '.json'),
+          partsPath: flags.parts,
+          commonOverrides: flags.set ?? [],
+          fittedOverrides: report.overrides,
+          dry: await readWavFile(flags.dry),
+          alignedRecording: advance(wetSamples, report.latencySamples),
+          oversample: parseOversample(flags.oversample),
+          commandInputs: inputs,
+        });
+        process.stdout.write(`Fitted design: ${fittedPath}\nIts render of the dry take: ${rendered.wavPath}\nListening page (recording, initial and fitted model, loudness-matched): ${pagePath}\nCaution: renders can be loud. Start playback at a low volume.\n`);
       }
       process.stdout.write(summary(report));
     });

@@ -9,7 +9,8 @@ import { runCompare } from '../compare/runCompare.js';
 import type { Variant } from '../compare/variants.js';
 import { suggestionText } from '../design/suggest.js';
 import type { OversampleFactor } from '../dsp/oversampler.js';
-import { CEILING_DBFS, DEFAULT_LOUDNESS_LUFS, printCompareSummary } from './compare.js';
+import { printCompareSummary } from './compare.js';
+import { DEFAULT_LOUDNESS_MATCH } from '../render/loudnessMatch.js';
 import { readDesignFile } from '../design/parseDesign.js';
 import { loadPartsLibrary } from '../design/parts.js';
 import { UserError } from '../errors.js';
@@ -97,7 +98,7 @@ async function listenToExtremes(designPath: string, flags: SpreadFlags, report: 
     outputDir: flags.output as string,
     variants,
     commonOverrides: flags.set ?? [],
-    match: { targetLufs: DEFAULT_LOUDNESS_LUFS, ceilingDbfs: CEILING_DBFS },
+    match: DEFAULT_LOUDNESS_MATCH,
     oversample,
     scale: { fullScaleVolts: 1 },
     bits: '24',

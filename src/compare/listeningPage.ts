@@ -107,9 +107,12 @@ function playerOptions(players: readonly CompareEntry[], selected: CompareEntry 
 async function takeSection(take: CompareTake, index: number, spectra: ReadonlyMap<string, readonly SpectrumPoint[]>): Promise<string> {
   const players = take.entries.filter((entry) => entry.file !== null);
   // The blind test starts on two variants (the question is usually "which value?"), the dry take
-  // only when fewer than two variants rendered.
+  // only when fewer than two variants rendered; with a recording of the built circuit, on the
+  // recording against the last render ("does my fitted model sound like my build?").
   const variants = players.filter((entry) => entry.kind === 'variant');
-  const [abxFirst, abxSecond] = variants.length >= 2 ? variants : [players[0], players[1] ?? players[0]];
+  const recording = players.find((entry) => entry.kind === 'recording');
+  const [abxFirst, abxSecond] =
+    recording !== undefined && variants.length > 0 ? [recording, variants[variants.length - 1]] : variants.length >= 2 ? variants : [players[0], players[1] ?? players[0]];
   const audios = players
     .map((entry) => `<audio preload="auto" loop data-key="${entry.variant}" data-label="${escapeHtml(playerName(entry))}" src="${escapeHtml(encodeURIComponent(entry.file ?? ''))}"></audio>`)
     .join('\n');

@@ -9,7 +9,8 @@ import type { OversampleFactor } from '../dsp/oversampler.js';
 
 /** One player on the page: the dry take or one variant's render of one take. */
 export interface CompareEntry {
-  kind: 'dry' | 'variant';
+  /** `recording`: a recording of the built circuit (`fit`'s page), beside the dry take and the renders. */
+  kind: 'dry' | 'variant' | 'recording';
   /** Variant number (1-based, as on the page's number keys); 0 for the dry take. */
   variant: number;
   label: string;

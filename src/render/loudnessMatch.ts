@@ -15,6 +15,9 @@ export interface LoudnessMatchTarget {
   ceilingDbfs: number;
 }
 
+/** What `compare` matches to unless told otherwise: -18 LUFS (BS.1770-4 integrated) under a -1 dBFS sample-peak ceiling. */
+export const DEFAULT_LOUDNESS_MATCH: LoudnessMatchTarget = { targetLufs: -18, ceilingDbfs: -1 };
+
 export interface LoudnessMatchReport {
   targetLufs: number;
   ceilingDbfs: number;

@@ -40,6 +40,11 @@ describe('clipbench fit', async () => {
     const clip = fitted.stages.find((s) => s.id === 'clip');
     expect(clip?.type === 'clipper' && clip.series).toBe(report.fitted[0].value);
     expect(readFileSync(path.join(out, 'pluck-mono-44k1-16bit--night-drive--fit.wav')).length).toBeGreaterThan(1000);
+    // The listening page: dry, recording, initial and fitted model; blind test preset recording against fitted.
+    const page = readFileSync(path.join(out, 'index.html'), 'utf8');
+    for (const file of ['--dry.wav', '--recording.wav', '--initial-model.wav', '--fitted-model.wav']) expect(page).toContain(`pluck-mono-44k1-16bit${file}`);
+    expect(page).toMatch(/data-role="pick-1">[^]*?<option value="1" selected>1\. recording of the build/);
+    expect(page).toMatch(/data-role="pick-2">[^]*?<option value="3" selected>3\. fitted model/);
   });
 
   it('refuses a key it cannot fit, bounds that exclude the value, and a recording at another rate, with one line', async () => {
