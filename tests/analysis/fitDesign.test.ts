@@ -9,7 +9,11 @@ import { Solver } from 'odex';
 import { lambertW0Log } from 'lambert-w-function';
 import { advance } from '../../src/analysis/alignTakes.js';
 import { fitDesign } from '../../src/analysis/fitDesign.js';
+import { buildChain } from '../../src/circuit/chain.js';
+import { renderChannel } from '../../src/circuit/renderChannel.js';
 import { loadPartsLibrary } from '../../src/design/parts.js';
+import { parseDesignText } from '../../src/design/parseDesign.js';
+import { resolveDesign } from '../../src/design/resolve.js';
 import { gaussianNoise } from '../dsp/testSignals.js';
 import { expectClose } from '../helpers/expectClose.js';
 
@@ -118,6 +122,16 @@ describe('fit', () => {
     const report = fitDesign({ designText: design, designFile: 'rc.json', parts, overrides: [], free: ['lp.r', 'lp.c'], dry, wet, sampleRate: RATE, wetName: 'wet.wav', oversample: 1, latencySamples: 0, gainDb: 0 });
     expect(report.fitted.map((f) => f.identifiable)).toEqual([false, false]);
     expect(report.fitted.map((f) => f.uncertainty)).toEqual([null, null]);
+  });
+
+  test('fits a named part\'s diode parameter, starting from the library values (the recording made by the renderer: this tests the key, the accuracy is tested above)', () => {
+    const inline = JSON.stringify({ name: 'clip', supply: 9, stages: [{ id: 'clip', type: 'clipper', series: '2k2', cap: '10n', diode: { saturationCurrent: IS, ideality: 2.0, seriesResistance: RS } }] });
+    const design = resolveDesign(parseDesignText(inline, 'inline.json', parts));
+    const wet = renderChannel(buildChain(design, { sampleRate: RATE, oversample: 2 }), dry);
+    const report = fitDesign({ designText: clipperDesign, designFile: 'clip.json', parts, overrides: [], free: ['clip.diode.ideality'], dry, wet, sampleRate: RATE, wetName: 'wet.wav', oversample: 2, latencySamples: 0, gainDb: 0 });
+    expect(report.fitted[0].initial).toBe(N); // the 1N4148's ideality in the parts library
+    expectClose(report.fitted[0].value, 2.0, { rtol: 1e-3 });
+    expect(report.overrides).toEqual([`clip.diode=${JSON.stringify({ saturationCurrent: IS, ideality: report.fitted[0].value, seriesResistance: RS })}`]);
   });
 
   test('a recording of another take is refused with one line', () => {
