@@ -144,16 +144,22 @@ class BuildDrawer {
     return farads === null ? null : this.value(`${stageId}.${field}`, `${stageId}.${field}`, 'capacitor', farads);
   }
 
-  /** A diode: a numeric tolerance scales Is (the library has no datasheet ranges for diodes: "datasheet" holds it). */
+  /**
+   * A diode: on "datasheet", Is and n drawn within the part's ranges (held where the library gives
+   * none); a numeric tolerance scales Is.
+   */
   diode(part: string, diode: DiodeParams, setKey = part): DiodeParams {
     const tolerance = toleranceOf(this.design, part, 'diode');
-    if (typeof tolerance !== 'number' || this.normal === null) {
+    if (this.normal === null || (tolerance === 'datasheet' && diode.ranges === undefined)) {
       this.note(part, 'diode', tolerance, 0);
       return diode;
     }
-    const deviation = fractionalDeviation(this.normal, tolerance);
+    const drawn =
+      tolerance === 'datasheet'
+        ? { ...diode, saturationCurrent: rangedValue(this.normal, diode.saturationCurrent, diode.ranges?.saturationCurrent), ideality: rangedValue(this.normal, diode.ideality, diode.ranges?.ideality) }
+        : { ...diode, saturationCurrent: diode.saturationCurrent * (1 + fractionalDeviation(this.normal, tolerance)) };
+    const deviation = drawn.saturationCurrent / diode.saturationCurrent - 1;
     this.note(part, 'diode', tolerance, deviation);
-    const drawn = { ...diode, saturationCurrent: diode.saturationCurrent * (1 + deviation) };
     if (deviation !== 0) this.overrides.push(`${setKey}=${JSON.stringify({ saturationCurrent: drawn.saturationCurrent, ideality: drawn.ideality, seriesResistance: drawn.seriesResistance })}`);
     return drawn;
   }

@@ -206,6 +206,7 @@ export const DIODE_FIELDS: FieldTable = {
   ideality: required('dimensionless', 'Ideality factor n'),
   seriesResistance: required('ohmsOrZero', 'Ohmic series resistance Rs, ohms'),
   ratedCurrent: optional('amperes', 'Continuous forward current rating, amperes (used by check)'),
+  ranges: optional('ranges', 'Datasheet ranges for tolerance runs, e.g. { "saturationCurrent": { "min": 6e-10, "max": 5.6e-9 } } (the Is that keep VF within its limits)'),
   source: optional('text', 'Where the numbers come from'),
 };
 
@@ -248,6 +249,7 @@ export const JFET_FIELDS: FieldTable = {
 
 /** Parameters a BJT's or JFET's `ranges` may bound. */
 export const BJT_RANGE_KEYS = ['saturationCurrent', 'betaForward'] as const;
+export const DIODE_RANGE_KEYS = ['saturationCurrent', 'ideality'] as const;
 export const JFET_RANGE_KEYS = ['idss', 'pinchOff'] as const;
 
 export const PARTS_FILE_FIELDS: FieldTable = {

@@ -5,7 +5,7 @@
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { UserError } from '../errors.js';
-import { BJT_FIELDS, BJT_RANGE_KEYS, DIODE_FIELDS, JFET_FIELDS, JFET_RANGE_KEYS, OPAMP_FIELDS, PARTS_FILE_FIELDS, fieldNames } from './fields.js';
+import { BJT_FIELDS, BJT_RANGE_KEYS, DIODE_FIELDS, DIODE_RANGE_KEYS, JFET_FIELDS, JFET_RANGE_KEYS, OPAMP_FIELDS, PARTS_FILE_FIELDS, fieldNames } from './fields.js';
 import { parseJsonText } from './jsonText.js';
 import { childPath, Locator } from './locator.js';
 import { readNumberInRange, readObject, readString, rejectUnknownFields, requireField } from './rawReaders.js';
@@ -48,13 +48,16 @@ export function parseDiodeEntry(raw: unknown, name: string, path: string, where:
   const entry = readObject(raw, path, where, what);
   rejectUnknownFields(entry, fieldNames(DIODE_FIELDS), path, where, what);
   const field = (key: string): unknown => requireField(entry, key, path, where, what);
+  const saturationCurrent = parseValue(field('saturationCurrent'), where.at(childPath(path, 'saturationCurrent')), 'ampere');
+  const ideality = readNumberInRange(field('ideality'), childPath(path, 'ideality'), where, 'an ideality factor', IDEALITY_MIN, IDEALITY_MAX);
   return {
     name,
-    saturationCurrent: parseValue(field('saturationCurrent'), where.at(childPath(path, 'saturationCurrent')), 'ampere'),
-    ideality: readNumberInRange(field('ideality'), childPath(path, 'ideality'), where, 'an ideality factor', IDEALITY_MIN, IDEALITY_MAX),
+    saturationCurrent,
+    ideality,
     seriesResistance: parseValue(field('seriesResistance'), where.at(childPath(path, 'seriesResistance')), 'ohm', { allowZero: true }),
     ratedCurrent:
       entry.ratedCurrent === undefined ? Infinity : parseValue(entry.ratedCurrent, where.at(childPath(path, 'ratedCurrent')), 'ampere'),
+    ...(entry.ranges === undefined ? {} : { ranges: readRanges(entry.ranges, DIODE_RANGE_KEYS, { saturationCurrent, ideality }, childPath(path, 'ranges'), where, what) }),
     source: entry.source === undefined ? defaultSource : readString(entry.source, childPath(path, 'source'), where, 'a source note'),
   };
 }

@@ -26,6 +26,8 @@ export interface DiodeParams {
   ideality: number; // n, dimensionless
   seriesResistance: number; // ohm
   ratedCurrent: number; // A, continuous forward current rating
+  /** Datasheet ranges of Is and n (e.g. the Is that keep VF within its datasheet limits), for tolerance runs. */
+  ranges?: Partial<Record<'saturationCurrent' | 'ideality', ParamRange>>;
   source: string;
 }
 

@@ -89,6 +89,24 @@ describe('semiconductors on "datasheet"', () => {
   });
 });
 
+describe('diodes on "datasheet"', () => {
+  test("a 1N4148's Is is drawn within the library's range (the Is that keep VF within its datasheet limits), n held", () => {
+    const text = JSON.stringify({ name: 'c', supply: 9, stages: [{ id: 'clip', type: 'clipper', series: '2k2', diode: '1n4148' }] });
+    const report = runSpread(parseDesignText(text, 'c.json', parts), { runs: 12, seed: 4, oversample: 1 });
+    const range = parts.diodes.get('1n4148')!.ranges!.saturationCurrent!;
+    const drawn = report.builds.map((b) => 2.52e-9 * (1 + b.deviations['clip.diode']));
+    for (const is of drawn) {
+      expect(is).toBeGreaterThanOrEqual(range.min * (1 - 1e-12));
+      expect(is).toBeLessThanOrEqual(range.max * (1 + 1e-12));
+    }
+    expect(new Set(drawn).size).toBeGreaterThan(6);
+    for (const build of report.builds) {
+      const inline = build.overrides.find((o) => o.startsWith('clip.diode='));
+      expect(JSON.parse(inline!.slice('clip.diode='.length)).ideality).toBe(1.752);
+    }
+  });
+});
+
 describe('builds as --set overrides', () => {
   test("a build's overrides, applied to the design file, give exactly that build's figures", () => {
     const text = JSON.stringify({
