@@ -22,6 +22,7 @@ import type { Design, DiodeParams, Resistance, Stage } from '../design/types.js'
 import type { OversampleFactor } from '../dsp/oversampler.js';
 import { UserError } from '../errors.js';
 import { welch } from '../dsp/welch.js';
+import { OCTAVE_BANDS_HZ } from '../dsp/audioBand.js';
 import { advance, alignRecording } from './alignTakes.js';
 
 const PRE_EMPHASIS = 0.85;
@@ -32,7 +33,6 @@ const DIFFERENCE_STEP = 1e-3;
 const IDENTIFIABLE_RATIO = 1e-6;
 /** Stop when an accepted step lowers the cost by less than this fraction. */
 const CONVERGED_RELATIVE = 1e-6;
-const OCTAVES_HZ = [31.5, 63, 125, 250, 500, 1000, 2000, 4000, 8000, 16000];
 /** The fitted latency stays within this many samples of the first estimate; its difference step. */
 const LATENCY_SPAN_SAMPLES = 4;
 const LATENCY_STEP_SAMPLES = 0.01;
@@ -377,10 +377,10 @@ export function fitDesign(inputs: FitInputs): FitReport {
 /** Residual energy over the recording's in each octave band, dB (Welch densities, IEC 61260 octave edges f / sqrt(2)..f sqrt(2)). */
 function residualByOctave(error: Float64Array, target: Float64Array, sampleRate: number): { hz: number; db: number | null }[] {
   const segmentLength = Math.min(8192, 2 ** Math.floor(Math.log2(Math.max(256, error.length))));
-  if (error.length < segmentLength) return OCTAVES_HZ.map((hz) => ({ hz, db: null }));
+  if (error.length < segmentLength) return OCTAVE_BANDS_HZ.map((hz) => ({ hz, db: null }));
   const e = welch(error, sampleRate, { segmentLength });
   const w = welch(target, sampleRate, { segmentLength });
-  return OCTAVES_HZ.map((hz) => {
+  return OCTAVE_BANDS_HZ.map((hz) => {
     let errorSum = 0;
     let targetSum = 0;
     for (let k = Math.ceil(hz / Math.SQRT2 / e.binHz); k <= Math.floor((hz * Math.SQRT2) / e.binHz) && k < e.values.length; k++) {

@@ -18,12 +18,13 @@ import { defaultTolerances, type PartKind, type Tolerance } from '../design/tole
 import type { CircuitElement, CircuitStage, Design, DiodeParams, OpampParams, ParamRange, Pot, Resistance, Stage } from '../design/types.js';
 import type { OversampleFactor } from '../dsp/oversampler.js';
 import { normalDeviates } from '../dsp/random.js';
+import { OCTAVE_BANDS_HZ } from '../dsp/audioBand.js';
 import { findOnset, sweepThdByLevel } from './levelSweep.js';
 import { measureSteadyTone, REFERENCE_TONE, TONE_WINDOW } from './referenceTone.js';
 import { predictResponse } from './response.js';
 
-/** Octave points of the response figures (IEC 61260 nominal octave bands, 31.5 Hz-16 kHz). */
-export const SPREAD_OCTAVES_HZ: readonly number[] = [31.5, 63, 125, 250, 500, 1000, 2000, 4000, 8000, 16000];
+/** Octave points of the response figures. */
+export const SPREAD_OCTAVES_HZ = OCTAVE_BANDS_HZ;
 const SWEEP = { minVolts: 0.005, maxVolts: 2, points: 25 };
 /** Every design's figures; a design with `circuit` stages adds `operatingPoint.<stage>.<node>`. */
 export const SPREAD_FIGURES: readonly string[] = ['gainDb', 'thdPercent', 'onset1Volts', 'onset3Volts', 'onset10Volts', ...SPREAD_OCTAVES_HZ.map((hz) => `responseDb@${hz}Hz`)];
