@@ -33,12 +33,12 @@ describe('night-drive facts against hand calculations', async () => {
   test('corners 1/(2 pi R C)', () => {
     // input high-pass: H(s) = s Rp C / (1 + s (Rs + Rp) C), fc = 1/(2 pi (1k + 1M) 100n)
     expectClose(factOf(result, 'in', 'corner-input').value!, 1 / (2 * Math.PI * 1.001e6 * 100e-9), { rtol: 1e-12 });
-    // gain bass corner 1/(2 pi 4k7 47n) = 720.5 Hz
-    expectClose(factOf(result, 'amp', 'corner-bass').value!, 720.5, { rtol: 1e-3 });
-    // treble corner over the drive pot: 1/(2 pi 510k 100p) .. 1/(2 pi 10k 100p)
+    // gain bass corner 1/(2 pi 3k9 68n) = 600.1 Hz
+    expectClose(factOf(result, 'amp', 'corner-bass').value!, 600.1, { rtol: 1e-3 });
+    // treble corner over the drive pot: 1/(2 pi 482k 100p) .. 1/(2 pi 12k 100p)
     const treble = factOf(result, 'amp', 'corner-treble');
-    expectClose(treble.min!, 1 / (2 * Math.PI * 510e3 * 100e-12), { rtol: 1e-12 });
-    expectClose(treble.max!, 1 / (2 * Math.PI * 10e3 * 100e-12), { rtol: 1e-12 });
+    expectClose(treble.min!, 1 / (2 * Math.PI * 482e3 * 100e-12), { rtol: 1e-12 });
+    expectClose(treble.max!, 1 / (2 * Math.PI * 12e3 * 100e-12), { rtol: 1e-12 });
     // tone: 1k..21k with 22n: 344.5 Hz .. 7234 Hz
     const tone = factOf(result, 'tone', 'corner-tone');
     expectClose(tone.min!, 344.5, { rtol: 1e-3 });
@@ -49,13 +49,13 @@ describe('night-drive facts against hand calculations', async () => {
 
   test('gain range 1 + Rf/Rg over the drive pot', () => {
     const gain = factOf(result, 'amp', 'gain');
-    expectClose(gain.min!, 1 + 10e3 / 4.7e3, { rtol: 1e-12 });
-    expectClose(gain.max!, 1 + 510e3 / 4.7e3, { rtol: 1e-12 });
+    expectClose(gain.min!, 1 + 12e3 / 3.9e3, { rtol: 1e-12 });
+    expectClose(gain.max!, 1 + 482e3 / 3.9e3, { rtol: 1e-12 });
   });
 
   test('GBW-limited bandwidth GBW/(1+Rf/Rg) and slew-limited bandwidth SR/(2 pi Vpeak)', () => {
     // TL072: GBW 4 MHz, SR 16 V/us (datasheet typ); swing on 9 V: 4.5 V - 1.5 V headroom = 3 V
-    expectClose(factOf(result, 'amp', 'gbw-bandwidth').value!, 4e6 / (1 + 510e3 / 4.7e3), { rtol: 1e-12 });
+    expectClose(factOf(result, 'amp', 'gbw-bandwidth').value!, 4e6 / (1 + 482e3 / 3.9e3), { rtol: 1e-12 });
     expectClose(factOf(result, 'amp', 'slew-bandwidth').value!, 16e6 / (2 * Math.PI * 3), { rtol: 1e-12 });
     expect(factOf(result, 'amp', 'opamp-swing')).toMatchObject({ min: -3, max: 3 });
   });
@@ -69,7 +69,7 @@ describe('night-drive facts against hand calculations', async () => {
     expectClose(factOf(result, 'clip', 'diode-peak-current').value!, expected, { rtol: 1e-6 });
   });
 
-  test('no rails-before-diodes although 109 x 1 V passes the 3 V swing: the 1N4148 clipper starts clipping near 0.5 V, long before; cautions are present', () => {
+  test('no rails-before-diodes although 125 x 1 V passes the 3 V swing: the 1N4148 clipper starts clipping near 0.5 V, long before; cautions are present', () => {
     expect(warningCodes(result)).toEqual([]);
     expect(result.facts.filter((f) => f.code === 'caution').map((f) => f.text).join(' ')).toMatch(/low volume.*mains.*ventilate/is);
   });

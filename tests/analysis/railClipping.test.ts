@@ -24,7 +24,7 @@ function check(text: string, overrides: string[] = []) {
 const codes = (warnings: { stage: string; code: string }[]): string[] => warnings.filter((w) => w.code === 'rails-before-diodes').map((w) => `${w.stage}:${w.code}`);
 
 describe('gain stage railClipping', () => {
-  test('absent: parsed as false, and the LED variant warns (1 V x 109 at full drive >> the TL072 3 V swing, below the LEDs)', () => {
+  test('absent: parsed as false, and the LED variant warns (1 V x 125 at full drive >> the TL072 3 V swing, below the LEDs)', () => {
     expect(NIGHT_DRIVE).toContain('led-red');
     const { design, result } = check(NIGHT_DRIVE);
     expect((design.stages[1] as GainStage).railClipping).toBe(false);

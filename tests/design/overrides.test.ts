@@ -20,7 +20,7 @@ describe('--set overrides', () => {
     const clip = design.stages[2] as ClipperStage;
     expect(clip.diode.name).toBe('1n34a');
     expect(clip.up).toBe(2);
-    expect((design.stages[1] as GainStage).rf).toMatchObject({ fixedOhms: 4700, potOhms: 500e3 });
+    expect((design.stages[1] as GainStage).rf).toMatchObject({ fixedOhms: 4700, potOhms: 470e3 });
   });
 
   test('clip.diode on a clipper with its own downDiode changes both sides, unless clip.downDiode is set too', () => {

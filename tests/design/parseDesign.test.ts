@@ -54,8 +54,8 @@ describe('night-drive.json (the issue 2 example)', () => {
     const [input, amp, clip, tone, out] = design.stages as [InputStage, GainStage, ClipperStage, ToneStage, VolumeStage];
     expect(input).toEqual({ id: 'in', type: 'input', series: 1000, coupling: 1e-7, pulldown: 1e6 });
     expect(amp.opamp.name).toBe('tl072');
-    expect(amp.rf).toEqual({ fixedOhms: 10e3, potOhms: 500e3, knob: 'drive', taper: 'audio', reverse: false });
-    expect([amp.rg, amp.cg, amp.cf, amp.feedbackDiode]).toEqual([4700, 47e-9, 100e-12, null]);
+    expect(amp.rf).toEqual({ fixedOhms: 12e3, potOhms: 470e3, knob: 'drive', taper: 'audio', reverse: false });
+    expect([amp.rg, amp.cg, amp.cf, amp.feedbackDiode]).toEqual([3900, 68e-9, 100e-12, null]);
     expect(clip.diode.name).toBe('1n4148');
     expect(clip.downDiode).toBe(clip.diode);
     expect([clip.series, clip.cap, clip.up, clip.down]).toEqual([2200, 10e-9, 1, 1]);

@@ -39,8 +39,8 @@ describe('resolve', () => {
   test('resolveDesign turns every pot into ohms at the design knobs', async () => {
     const design = await readDesignFile('fixtures/designs/night-drive.json', loadPartsLibrary());
     const resolved = resolveDesign(design);
-    // drive 0.6 on an audio 500k pot: 10k + 500k (81^0.6 - 1)/80
-    expectClose((resolved.stages[1] as GainStage<number>).rf, 10e3 + (500e3 * (Math.pow(81, 0.6) - 1)) / 80, { rtol: 1e-12 });
+    // drive 0.6 on an audio 470k pot: 12k + 470k (81^0.6 - 1)/80
+    expectClose((resolved.stages[1] as GainStage<number>).rf, 12e3 + (470e3 * (Math.pow(81, 0.6) - 1)) / 80, { rtol: 1e-12 });
     // tone 0.5 on a linear 20k pot plus 1k
     expectClose((resolved.stages[3] as ToneStage<number>).r, 11e3, { rtol: 1e-12 });
   });
