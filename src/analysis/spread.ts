@@ -187,6 +187,30 @@ class BuildDrawer {
     return { ...opamp, gbwHz: opamp.gbwHz * (1 + deviation), slewRateVoltsPerSecond: opamp.slewRateVoltsPerSecond * (1 + deviation) };
   }
 
+  /**
+   * A transistor on "datasheet": each of `keys` drawn within the part's range (the first key's
+   * deviation is the one reported); `inline` states the drawn part as a design file's inline part.
+   * Any other tolerance holds it (transistors have no fractional tolerance here).
+   */
+  private rangedPart<K extends string, P extends Record<K, number> & { ranges: Partial<Record<K, ParamRange>> }>(
+    part: string,
+    kind: 'bjt' | 'jfet',
+    params: P,
+    keys: readonly [K, ...K[]],
+    inline: (drawn: P) => object,
+  ): P {
+    const tolerance = toleranceOf(this.design, part, kind);
+    if (this.normal === null || tolerance !== 'datasheet') {
+      this.note(part, kind, tolerance, 0);
+      return params;
+    }
+    const drawn = { ...params };
+    for (const key of keys) (drawn as Record<K, number>)[key] = rangedValue(this.normal, params[key], params.ranges[key]);
+    this.note(part, kind, tolerance, drawn[keys[0]] / params[keys[0]] - 1);
+    this.overrides.push(`${part}.part=${JSON.stringify(inline(drawn))}`);
+    return drawn;
+  }
+
   element(stageId: string, element: CircuitElement): CircuitElement {
     const part = `${stageId}.${element.id}`;
     switch (element.type) {
@@ -202,31 +226,15 @@ class BuildDrawer {
         return { ...element, opamp: this.opamp(part, element.opamp) };
       case 'npn':
       case 'pnp': {
-        const tolerance = toleranceOf(this.design, part, 'bjt');
-        const draw = this.normal;
-        if (draw === null || tolerance !== 'datasheet') {
-          this.note(part, 'bjt', tolerance, 0);
-          return element;
-        }
-        const bjt = { ...element.bjt, betaForward: rangedValue(draw, element.bjt.betaForward, element.bjt.ranges.betaForward), saturationCurrent: rangedValue(draw, element.bjt.saturationCurrent, element.bjt.ranges.saturationCurrent) };
-        this.note(part, 'bjt', tolerance, bjt.betaForward / element.bjt.betaForward - 1);
-        const { polarity, saturationCurrent, betaForward, betaReverse, ideality } = bjt;
-        this.overrides.push(`${part}.part=${JSON.stringify({ polarity, saturationCurrent, betaForward, betaReverse, ideality })}`);
-        return { ...element, bjt };
+        const { polarity, betaReverse, ideality } = element.bjt;
+        const bjt = this.rangedPart(part, 'bjt', element.bjt, ['betaForward', 'saturationCurrent'], (b) => ({ polarity, saturationCurrent: b.saturationCurrent, betaForward: b.betaForward, betaReverse, ideality }));
+        return bjt === element.bjt ? element : { ...element, bjt };
       }
       case 'njfet':
       case 'pjfet': {
-        const tolerance = toleranceOf(this.design, part, 'jfet');
-        const draw = this.normal;
-        if (draw === null || tolerance !== 'datasheet') {
-          this.note(part, 'jfet', tolerance, 0);
-          return element;
-        }
-        const jfet = { ...element.jfet, idss: rangedValue(draw, element.jfet.idss, element.jfet.ranges.idss), pinchOff: rangedValue(draw, element.jfet.pinchOff, element.jfet.ranges.pinchOff) };
-        this.note(part, 'jfet', tolerance, jfet.idss / element.jfet.idss - 1);
-        const { polarity, idss, pinchOff, lambda } = jfet;
-        this.overrides.push(`${part}.part=${JSON.stringify({ polarity, idss, pinchOff, lambda })}`);
-        return { ...element, jfet };
+        const { polarity, lambda } = element.jfet;
+        const jfet = this.rangedPart(part, 'jfet', element.jfet, ['idss', 'pinchOff'], (j) => ({ polarity, idss: j.idss, pinchOff: j.pinchOff, lambda }));
+        return jfet === element.jfet ? element : { ...element, jfet };
       }
     }
   }

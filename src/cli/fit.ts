@@ -2,7 +2,6 @@
  * `clipbench fit <design.json> --dry dry.wav --wet recorded.wav --free key[,key...] [-o dir] [--json file]`:
  * which values make the model sound like the built circuit (analysis/fitDesign.ts).
  */
-import { readFile } from 'node:fs/promises';
 import path from 'node:path';
 import type { Command } from 'commander';
 import { assertNotAnInput, createOutputFolder, writeFileAtomic } from '../audio/atomicWrite.js';
@@ -14,6 +13,7 @@ import { writeFitListeningPage } from '../compare/fitPage.js';
 import { applyOverrides } from '../design/overrides.js';
 import { parseJsonText } from '../design/jsonText.js';
 import { loadPartsLibrary } from '../design/parts.js';
+import { readDesignText } from '../design/parseDesign.js';
 import { UserError } from '../errors.js';
 import { runRenderJob } from '../render/renderJob.js';
 import { formatRows, formatValue } from '../report/table.js';
@@ -82,9 +82,7 @@ export function registerFitCommand(program: Command): void {
       if (flags.json) assertNotAnInput(flags.json, inputs);
       const free = flags.free.flatMap((text) => text.split(',')).map((key) => key.trim()).filter((key) => key !== '');
       if (free.length === 0) throw new UserError('--free: give at least one key to fit, e.g. --free clip.series');
-      const designText = await readFile(designPath, 'utf8').catch(() => {
-        throw new UserError(`${designPath}: cannot read the design file`);
-      });
+      const designText = await readDesignText(designPath);
       const dry = await readMono(flags.dry);
       const wet = await readMono(flags.wet);
       if (dry.sampleRate !== wet.sampleRate) throw new UserError(`${flags.wet}: ${wet.sampleRate} Hz, but the dry take is ${dry.sampleRate} Hz; record at the dry take's rate`);

@@ -118,14 +118,17 @@ export function parseDesignText(jsonText: string, fileName: string, parts: Parts
 }
 
 /** Read and parse a design file; `overrides` are `--set` texts such as `drive=0.8` or `clip.diode=1n34a`. */
-export async function readDesignFile(filePath: string, parts: PartsLibrary, overrides: readonly OverrideInput[] = []): Promise<Design<Resistance>> {
-  let text: string;
+/** A design file's text; a file that cannot be read is one line naming it and why. */
+export async function readDesignText(filePath: string): Promise<string> {
   try {
-    text = await readFile(filePath, 'utf8');
+    return await readFile(filePath, 'utf8');
   } catch (error) {
     const code = (error as NodeJS.ErrnoException).code;
     const reason = code === 'ENOENT' ? 'file not found' : code === 'EISDIR' ? 'is a folder, expected a design file' : (error as Error).message;
     throw new UserError(`${filePath}: cannot read design (${reason})`);
   }
-  return parseDesignText(text, filePath, parts, overrides);
+}
+
+export async function readDesignFile(filePath: string, parts: PartsLibrary, overrides: readonly OverrideInput[] = []): Promise<Design<Resistance>> {
+  return parseDesignText(await readDesignText(filePath), filePath, parts, overrides);
 }

@@ -11,7 +11,7 @@
  * cost, never the answer's tolerance. See docs/models.md, "Nonlinear solves" and "Speed".
  */
 import type { DeviceKind } from '../netlist/deviceKind.js';
-import { compileWithDeviceHelpers, emitDeviceEvaluation, emitDeviceLimit } from './devices.js';
+import { compileWithDeviceHelpers, emitDeviceEvaluation, emitDeviceLimit, type DeviceSlots, type LimitSlots } from './devices.js';
 import type { DkModel } from './dkModel.js';
 
 /** Newton steps the generated solve takes before it hands a block to the robust solve. */
@@ -104,30 +104,23 @@ class KernelSource {
     return { load, store: `${store}\n${solved}` };
   }
 
-  private deviceEvaluations(j: number): string {
-    const { kinds, portCounts, deviceParams, devicePort, jacStart, blockDevice } = this.layout;
-    return range(blockDevice[j], blockDevice[j + 1])
-      .map((d) =>
-        emitDeviceEvaluation(kinds[d], {
-          param: (k) => literal(deviceParams[d][k]),
-          volts: (q) => `v${devicePort[d] + q}`,
-          amps: (q) => `i${devicePort[d] + q}`,
-          jacobian: (row, col) => `J${jacStart[d] + row * portCounts[d] + col}`,
-        }),
-      )
-      .join('\n');
+  /** The locals of device d as emitter slots: its constants inlined, v/i/J/t locals of its ports. */
+  private slots(d: number): DeviceSlots & LimitSlots {
+    const { portCounts, deviceParams, devicePort, jacStart } = this.layout;
+    return {
+      param: (k) => literal(deviceParams[d][k]),
+      volts: (q) => `v${devicePort[d] + q}`,
+      amps: (q) => `i${devicePort[d] + q}`,
+      jacobian: (row, col) => `J${jacStart[d] + row * portCounts[d] + col}`,
+      limited: (q) => `t${devicePort[d] + q}`,
+    };
   }
 
-  private deviceLimits(j: number): string {
-    const { kinds, deviceParams, devicePort, blockDevice } = this.layout;
+  /** `emit` for every device of block j, joined. */
+  private forBlockDevices(j: number, emit: (kind: DeviceKind, slots: DeviceSlots & LimitSlots) => string): string {
+    const { kinds, blockDevice } = this.layout;
     return range(blockDevice[j], blockDevice[j + 1])
-      .map((d) =>
-        emitDeviceLimit(kinds[d], {
-          param: (k) => literal(deviceParams[d][k]),
-          volts: (q) => `v${devicePort[d] + q}`,
-          limited: (q) => `t${devicePort[d] + q}`,
-        }),
-      )
+      .map((d) => emit(kinds[d], this.slots(d)))
       .join('\n');
   }
 
@@ -199,7 +192,7 @@ class KernelSource {
       .join('\n');
     const own = (r: number): ReadonlyArray<readonly [number, string]> => ports.map((c) => [this.f(r, c), `i${c}`] as const);
     const tolerance = literal(this.layout.tolerance);
-    const limitedUpdate = [ports.map((r) => `let t${r} = v${r} + d${r - lo};`).join('\n'), this.deviceLimits(j), ports.map((r) => `v${r} = t${r};`).join('\n')].join('\n');
+    const limitedUpdate = [ports.map((r) => `let t${r} = v${r} + d${r - lo};`).join('\n'), this.forBlockDevices(j, emitDeviceLimit), ports.map((r) => `v${r} = t${r};`).join('\n')].join('\n');
     const convergedTest = ports.map((r) => `Math.abs(g${r}) <= ${tolerance} * Math.max(1, Math.abs(v${r}), Math.abs(p${r}))`).join(' && ');
     return `// block ${j}: ports ${lo}..${hi - 1}
 ${earlier}
@@ -211,7 +204,7 @@ ${limitedUpdate}
 }
 let settled = false;
 for (let iteration = 0; iteration < ${FAST_NEWTON_ITERATIONS}; iteration++) {
-${this.deviceEvaluations(j)}
+${this.forBlockDevices(j, emitDeviceEvaluation)}
 ${ports.map((r) => `const g${r} = ${linearSum(`p${r} - v${r}`, own(r))};`).join('\n')}
 if (${convergedTest}) { settled = true; break; }
 ${this.newtonStep(lo, hi, j, 'break')}

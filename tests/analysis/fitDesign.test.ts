@@ -5,7 +5,6 @@
 // recover R, the latency and the gain; an RC section's R and C (only R C matters, a known
 // non-identifiability) must be reported as such; a recording of another take is refused.
 import { describe, expect, test } from 'vitest';
-import { Solver } from 'odex';
 import { lambertW0Log } from 'lambert-w-function';
 import { advance } from '../../src/analysis/alignTakes.js';
 import { fitDesign } from '../../src/analysis/fitDesign.js';
@@ -16,13 +15,14 @@ import { parseDesignText } from '../../src/design/parseDesign.js';
 import { resolveDesign } from '../../src/design/resolve.js';
 import { gaussianNoise } from '../dsp/testSignals.js';
 import { expectClose } from '../helpers/expectClose.js';
+import { integrateOnGrid, thermalVolts } from '../solver/odeReference.js';
 
 const RATE = 48000;
 const SAMPLES = Math.round(0.4 * RATE);
 const parts = loadPartsLibrary();
-// 1N4148 as the parts library gives it (Is, n, Rs); Vt = kT/q at 25 C with the exact SI constants.
+// 1N4148 as the parts library gives it (Is, n, Rs); Vt = kT/q at 25 C (odeReference.ts).
 const [IS, N, RS] = [2.52e-9, 1.752, 0.568];
-const NVT = (N * 1.380649e-23 * 298.15) / 1.602176634e-19;
+const NVT = N * thermalVolts(25);
 const PARTIALS = [
   { hz: 196, volts: 1.2 },
   { hz: 294, volts: 0.6 },
@@ -69,24 +69,9 @@ function decimate(high: Float64Array): Float64Array {
 
 /** The analog clipper's output, solved by ODEX at RECORD_FACTOR x the rate and decimated. */
 function clipperRecording(seriesOhms: number, capFarads: number): Float64Array {
-  const solver = new Solver(1);
-  solver.denseOutput = true;
-  solver.absoluteTolerance = 1e-10;
-  solver.relativeTolerance = 1e-10;
-  solver.maxSteps = 1e7;
   const highRate = RATE * RECORD_FACTOR;
-  const high = new Float64Array(SAMPLES * RECORD_FACTOR);
-  let index = 0;
-  solver.solve(
-    (t: number, y: number[]) => [((vin(t) - y[0]) / seriesOhms - (diode(y[0]) - diode(-y[0]))) / capFarads],
-    0,
-    [0],
-    (high.length - 0.5) / highRate,
-    solver.grid(1 / highRate, (_t: number, y: number[]) => {
-      if (index < high.length) high[index++] = y[0];
-    }),
-  );
-  return decimate(high);
+  const derivative = (t: number, y: number[]): number[] => [((vin(t) - y[0]) / seriesOhms - (diode(y[0]) - diode(-y[0]))) / capFarads];
+  return decimate(integrateOnGrid(derivative, [0], highRate, SAMPLES * RECORD_FACTOR, (_t, y) => y[0], 1 / highRate, 1e-10));
 }
 
 const dry = Float64Array.from({ length: SAMPLES }, (_, n) => vin(n / RATE));
@@ -110,15 +95,7 @@ describe('fit', () => {
   test("an RC section's R and C are reported as not identifiable (only R C shapes its response)", () => {
     const design = JSON.stringify({ name: 'rc', supply: 9, stages: [{ id: 'lp', type: 'lowpass', r: '10k', c: '10n' }] });
     // The analog RC low-pass of R C = 150 us, by ODEX: C dv/dt = (vin - v) / R.
-    const solver = new Solver(1);
-    solver.denseOutput = true;
-    solver.absoluteTolerance = 1e-10;
-    solver.relativeTolerance = 1e-10;
-    const wet = new Float64Array(SAMPLES);
-    let index = 0;
-    solver.solve((t: number, y: number[]) => [(vin(t) - y[0]) / 150e-6], 0, [0], (SAMPLES - 0.5) / RATE, solver.grid(1 / RATE, (_t: number, y: number[]) => {
-      if (index < SAMPLES) wet[index++] = y[0];
-    }));
+    const wet = integrateOnGrid((t, y) => [(vin(t) - y[0]) / 150e-6], [0], RATE, SAMPLES, (_t, y) => y[0], 1 / RATE, 1e-10);
     const report = fitDesign({ designText: design, designFile: 'rc.json', parts, overrides: [], free: ['lp.r', 'lp.c'], dry, wet, sampleRate: RATE, wetName: 'wet.wav', oversample: 1, latencySamples: 0, gainDb: 0 });
     expect(report.fitted.map((f) => f.identifiable)).toEqual([false, false]);
     expect(report.fitted.map((f) => f.uncertainty)).toEqual([null, null]);

@@ -2,6 +2,7 @@
 // the tolerance: common practice), the variance shares against first-order uncertainty propagation
 // (JCGM 100:2008, the GUM, section 5.1: for y = f(x1, x2) with independent inputs, u^2(y) =
 // sum (df/dxi)^2 u^2(xi)), the design file's tolerance entries, and seeded repeatability.
+import { readFileSync } from 'node:fs';
 import { describe, expect, test } from 'vitest';
 import { buildFigures, runSpread } from '../../src/analysis/spread.js';
 import { resolveDesign } from '../../src/design/resolve.js';
@@ -125,6 +126,21 @@ describe('builds as --set overrides', () => {
       expect(build.overrides.some((o) => o.startsWith('tone.pot='))).toBe(true);
       const again = buildFigures(resolveDesign(parseDesignText(text, 'mixed.json', parts, build.overrides)), 1);
       expect(again).toEqual(build.figures);
+    }
+  });
+});
+
+describe('transistors on "datasheet"', () => {
+  test("a transistor's hFE is drawn within the library's range, and the build's inline part reproduces it", async () => {
+    const file = 'fixtures/designs/ember-twin.json';
+    const text = readFileSync(file, 'utf8');
+    const report = runSpread(parseDesignText(text, file, parts), { runs: 2, seed: 6, oversample: 1 });
+    const range = parts.bjts.get('2n5088')!.ranges.betaForward!;
+    for (const build of report.builds) {
+      const q1 = JSON.parse(build.overrides.find((o) => o.startsWith('fuzz.q1.part='))!.slice('fuzz.q1.part='.length));
+      expect(q1.betaForward).toBeGreaterThanOrEqual(range.min);
+      expect(q1.betaForward).toBeLessThanOrEqual(range.max);
+      expect(buildFigures(resolveDesign(parseDesignText(text, file, parts, build.overrides)), 1)).toEqual(build.figures);
     }
   });
 });
